@@ -1,0 +1,2 @@
+#include <cstdio>
+int main() { std::puts("lobfix " LOBFIX_VERSION); return 0; }

@@ -1,0 +1,53 @@
+// lobfix: the result of solving one signal's bearings (stage "solve").
+#pragma once
+
+#include <array>
+#include <cstddef>
+#include <string>
+#include <vector>
+
+#include "lobfix/geodesy.hpp"
+
+namespace lobfix {
+
+/// Why there is, or is not, a fix. Anything but `ok` means no position is reported.
+enum class FixStatus {
+  ok,
+  too_few_bearings,  ///< fewer than two usable bearings
+  single_spot,       ///< every bearing was taken from (nearly) the same place
+  no_crossing,       ///< parallel or diverging rays: no crossing ahead of the stations
+  out_of_range,      ///< the only solution lies beyond the maximum range
+  at_station,        ///< the solution falls on a station, where its own azimuth is undefined
+  not_converged,     ///< the estimator did not converge
+};
+/// Short machine name, e.g. "no_crossing".
+const char* to_string(FixStatus status);
+
+/// How one bearing fits the fix.
+struct BearingFit {
+  std::size_t index = 0;             ///< index into the bearings passed to the solver
+  double predicted_azimuth_deg = 0;  ///< geodesic azimuth from the station to the fix, [0,360)
+  double residual_deg = 0;           ///< measured - predicted, wrapped to (-180, 180]
+  double effective_sigma_deg = 0;    ///< sqrt(sigma^2 + position term^2), see docs/method.md
+  double normalized_residual = 0;    ///< residual / effective sigma
+  double range_m = 0;                ///< geodesic distance station -> fix
+};
+
+/// A position estimate with its covariance, or a status saying why there is none.
+struct Fix {
+  std::string signal;
+  FixStatus status = FixStatus::not_converged;
+  std::string message;  ///< human explanation when status != ok (and notes when ok)
+  LatLon position;
+  /// Covariance of the east/north error at the fix (m^2), row-major [[ee, en], [ne, nn]].
+  std::array<std::array<double, 2>, 2> covariance_en_m2{};
+  double chi2 = 0.0;  ///< sum of squared normalised residuals
+  int dof = 0;        ///< degrees of freedom, n - 2
+  std::vector<BearingFit> bearings;  ///< one per bearing used, in input order
+  int iterations = 0;                ///< solver iterations (all re-centrings together)
+  double start_distance_m = 0.0;     ///< distance from the start point to the fix
+
+  bool ok() const noexcept { return status == FixStatus::ok; }
+};
+
+}  // namespace lobfix

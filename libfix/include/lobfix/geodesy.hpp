@@ -1,0 +1,74 @@
+// lobfix: the one place that calls GeographicLib (WGS 84 ellipsoid throughout).
+//
+// Notation (Karney 2013, "Algorithms for geodesics", J. Geodesy 87:43-55): point 1 is the
+// start of a geodesic, point 2 its end; s12 distance (m); azi1, azi2 forward azimuths at
+// points 1 and 2 (deg clockwise from north); m12 reduced length (m); M12, M21 geodesic
+// scales (dimensionless).
+#pragma once
+
+#include <string>
+
+namespace lobfix {
+
+/// Wrap an angle to (-180, 180] degrees. wrap_deg180(-180) == 180; NaN stays NaN.
+double wrap_deg180(double angle_deg);
+/// Wrap an angle to [0, 360) degrees. wrap_deg360(360) == 0, wrap_deg360(-0.0) == 0.
+double wrap_deg360(double angle_deg);
+/// Signed smallest difference a - b in (-180, 180] degrees.
+double angle_diff_deg(double a_deg, double b_deg);
+
+struct LatLon {
+  double lat_deg = 0.0;
+  double lon_deg = 0.0;
+};
+
+/// The inverse geodesic problem between two points.
+struct GeodesicLine12 {
+  double s12_m = 0.0;
+  double azi1_deg = 0.0;  ///< in (-180, 180]
+  double azi2_deg = 0.0;  ///< in (-180, 180]
+  double m12_m = 0.0;
+  double M12 = 1.0;
+  double M21 = 1.0;
+};
+GeodesicLine12 geodesic_inverse(const LatLon& p1, const LatLon& p2);
+
+/// The direct problem: the point s12_m along the geodesic leaving p1 at azi1_deg, and the
+/// forward azimuth there. Longitude of the result is in [-180, 180] unless
+/// unroll is true, when it is continuous with p1's longitude (may pass +-180).
+struct GeodesicEnd {
+  LatLon point;
+  double azi2_deg = 0.0;
+};
+GeodesicEnd geodesic_direct(const LatLon& p1, double azi1_deg, double s12_m, bool unroll = false);
+
+/// Azimuthal equidistant frame centred at `centre`: x east, y north (m) at the centre;
+/// hypot(x, y) is the geodesic distance and atan2(x, y) the azimuth at the centre, exactly.
+struct LocalPoint {
+  LatLon point;
+  double azi_deg = 0.0;  ///< azimuth at the point of the geodesic from the centre
+  double rk = 1.0;       ///< reciprocal of the azimuthal scale at the point (m12 / s12)
+};
+LocalPoint local_to_geo(const LatLon& centre, double x_m, double y_m);
+void geo_to_local(const LatLon& centre, const LatLon& point, double& x_m, double& y_m);
+
+/// Grid references of a point: UTM/UPS and MGRS.
+struct GridReference {
+  int zone = 0;          ///< UTM zone 1..60, 0 for UPS (polar)
+  bool northp = true;    ///< northern hemisphere
+  double easting_m = 0.0;
+  double northing_m = 0.0;
+  double convergence_deg = 0.0;  ///< meridian convergence (grid north vs true north)
+  std::string utm;       ///< e.g. "33N 512345 6123456"
+  std::string mgrs;      ///< 1 m precision, e.g. "33VWG1234523456" (truncated, per MGRS)
+};
+/// @throws InputError if the latitude is outside [-90, 90].
+GridReference grid_reference(const LatLon& point);
+
+/// Decimal degrees to degrees-minutes-seconds, e.g. "51°28'38.12\"N".
+std::string format_dms(double angle_deg, bool is_latitude, int second_decimals = 2);
+
+/// Mean radius of the WGS 84 ellipsoid (m), for order-of-magnitude decisions only.
+constexpr double kMeanEarthRadiusM = 6371008.8;
+
+}  // namespace lobfix

@@ -1,0 +1,111 @@
+// Notation (Karney 2013): point 1 start, point 2 end of a geodesic; s12 length (m); azi1,
+// azi2 forward azimuths (deg); m12 reduced length (m); M12, M21 geodesic scales.
+#include "lobfix/geodesy.hpp"
+
+#include <GeographicLib/AzimuthalEquidistant.hpp>
+#include <GeographicLib/Geodesic.hpp>
+#include <GeographicLib/MGRS.hpp>
+#include <GeographicLib/UTMUPS.hpp>
+
+#include <cmath>
+#include <cstdio>
+#include <string>
+
+#include "lobfix/error.hpp"
+
+namespace lobfix {
+
+namespace {
+const GeographicLib::Geodesic& wgs84() { return GeographicLib::Geodesic::WGS84(); }
+}  // namespace
+
+double wrap_deg180(double angle_deg) {
+  if (!std::isfinite(angle_deg)) return std::nan("");
+  double r = std::remainder(angle_deg, 360.0);  // [-180, 180]
+  if (r <= -180.0) r += 360.0;
+  return r == 0.0 ? 0.0 : r;  // no -0
+}
+
+double wrap_deg360(double angle_deg) {
+  if (!std::isfinite(angle_deg)) return std::nan("");
+  double r = std::fmod(angle_deg, 360.0);
+  if (r < 0.0) r += 360.0;
+  if (r >= 360.0) r -= 360.0;  // fmod of a tiny negative plus 360 can round to 360
+  return r == 0.0 ? 0.0 : r;
+}
+
+double angle_diff_deg(double a_deg, double b_deg) { return wrap_deg180(a_deg - b_deg); }
+
+GeodesicLine12 geodesic_inverse(const LatLon& p1, const LatLon& p2) {
+  GeodesicLine12 g;
+  wgs84().Inverse(p1.lat_deg, p1.lon_deg, p2.lat_deg, p2.lon_deg, g.s12_m, g.azi1_deg, g.azi2_deg,
+                  g.m12_m, g.M12, g.M21);
+  return g;
+}
+
+GeodesicEnd geodesic_direct(const LatLon& p1, double azi1_deg, double s12_m, bool unroll) {
+  GeodesicEnd e;
+  double t = 0.0;
+  unsigned mask = GeographicLib::Geodesic::LATITUDE | GeographicLib::Geodesic::LONGITUDE |
+                  GeographicLib::Geodesic::AZIMUTH;
+  if (unroll) mask |= GeographicLib::Geodesic::LONG_UNROLL;
+  wgs84().GenDirect(p1.lat_deg, p1.lon_deg, azi1_deg, false, s12_m, mask, e.point.lat_deg,
+                    e.point.lon_deg, e.azi2_deg, t, t, t, t, t);
+  return e;
+}
+
+LocalPoint local_to_geo(const LatLon& centre, double x_m, double y_m) {
+  const GeographicLib::AzimuthalEquidistant proj(wgs84());
+  LocalPoint p;
+  proj.Reverse(centre.lat_deg, centre.lon_deg, x_m, y_m, p.point.lat_deg, p.point.lon_deg,
+               p.azi_deg, p.rk);
+  return p;
+}
+
+void geo_to_local(const LatLon& centre, const LatLon& point, double& x_m, double& y_m) {
+  const GeographicLib::AzimuthalEquidistant proj(wgs84());
+  double azi = 0.0;
+  double rk = 0.0;
+  proj.Forward(centre.lat_deg, centre.lon_deg, point.lat_deg, point.lon_deg, x_m, y_m, azi, rk);
+}
+
+GridReference grid_reference(const LatLon& point) {
+  if (!(point.lat_deg >= -90.0 && point.lat_deg <= 90.0)) {
+    throw InputError({"", 0, 0, "lat", "latitude outside [-90, 90]"});
+  }
+  GridReference g;
+  double k = 0.0;
+  GeographicLib::UTMUPS::Forward(point.lat_deg, point.lon_deg, g.zone, g.northp, g.easting_m,
+                                 g.northing_m, g.convergence_deg, k);
+  // 5 digits per coordinate: 1 m. MGRS::Forward truncates, as the MGRS standard asks.
+  GeographicLib::MGRS::Forward(g.zone, g.northp, g.easting_m, g.northing_m, point.lat_deg, 5,
+                               g.mgrs);
+  char buf[96];
+  if (g.zone > 0) {
+    std::snprintf(buf, sizeof buf, "%d%c %.0f %.0f", g.zone, g.northp ? 'N' : 'S',
+                  std::floor(g.easting_m), std::floor(g.northing_m));
+  } else {
+    std::snprintf(buf, sizeof buf, "UPS %c %.0f %.0f", g.northp ? 'N' : 'S',
+                  std::floor(g.easting_m), std::floor(g.northing_m));
+  }
+  g.utm = buf;
+  return g;
+}
+
+std::string format_dms(double angle_deg, bool is_latitude, int second_decimals) {
+  const char hemi = is_latitude ? (angle_deg < 0 ? 'S' : 'N') : (angle_deg < 0 ? 'W' : 'E');
+  const double scale = std::pow(10.0, second_decimals);
+  // Round once in units of the last printed digit so that 59.999" never prints as 60".
+  const double total = std::round(std::fabs(angle_deg) * 3600.0 * scale);
+  const double units_per_degree = 3600.0 * scale;
+  const double units_per_minute = 60.0 * scale;
+  const double d = std::floor(total / units_per_degree);
+  const double m = std::floor((total - d * units_per_degree) / units_per_minute);
+  const double s = (total - d * units_per_degree - m * units_per_minute) / scale;
+  char buf[64];
+  std::snprintf(buf, sizeof buf, "%.0f\xC2\xB0%02.0f'%0*.*f\"%c", d, m,
+                second_decimals > 0 ? second_decimals + 3 : 2, second_decimals, s, hemi);
+  return buf;
+}
+
+}  // namespace lobfix
