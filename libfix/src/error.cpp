@@ -8,7 +8,8 @@ std::string Diagnostic::to_string() const {
   std::string out = file;
   if (line > 0) {
     out += ':' + std::to_string(line);
-    if (column > 0) out += ':' + std::to_string(column);
+    if (column > 0)
+      out += ':' + std::to_string(column);
   }
   out += ": ";
   out += reason;

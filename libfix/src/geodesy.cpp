@@ -16,25 +16,34 @@
 namespace lobfix {
 
 namespace {
-const GeographicLib::Geodesic& wgs84() { return GeographicLib::Geodesic::WGS84(); }
+const GeographicLib::Geodesic& wgs84() {
+  return GeographicLib::Geodesic::WGS84();
+}
 }  // namespace
 
 double wrap_deg180(double angle_deg) {
-  if (!std::isfinite(angle_deg)) return std::nan("");
+  if (!std::isfinite(angle_deg))
+    return std::nan("");
   double r = std::remainder(angle_deg, 360.0);  // [-180, 180]
-  if (r <= -180.0) r += 360.0;
+  if (r <= -180.0)
+    r += 360.0;
   return r == 0.0 ? 0.0 : r;  // no -0
 }
 
 double wrap_deg360(double angle_deg) {
-  if (!std::isfinite(angle_deg)) return std::nan("");
+  if (!std::isfinite(angle_deg))
+    return std::nan("");
   double r = std::fmod(angle_deg, 360.0);
-  if (r < 0.0) r += 360.0;
-  if (r >= 360.0) r -= 360.0;  // fmod of a tiny negative plus 360 can round to 360
+  if (r < 0.0)
+    r += 360.0;
+  if (r >= 360.0)
+    r -= 360.0;  // fmod of a tiny negative plus 360 can round to 360
   return r == 0.0 ? 0.0 : r;
 }
 
-double angle_diff_deg(double a_deg, double b_deg) { return wrap_deg180(a_deg - b_deg); }
+double angle_diff_deg(double a_deg, double b_deg) {
+  return wrap_deg180(a_deg - b_deg);
+}
 
 GeodesicLine12 geodesic_inverse(const LatLon& p1, const LatLon& p2) {
   GeodesicLine12 g;
@@ -48,7 +57,8 @@ GeodesicEnd geodesic_direct(const LatLon& p1, double azi1_deg, double s12_m, boo
   double t = 0.0;
   unsigned mask = GeographicLib::Geodesic::LATITUDE | GeographicLib::Geodesic::LONGITUDE |
                   GeographicLib::Geodesic::AZIMUTH;
-  if (unroll) mask |= GeographicLib::Geodesic::LONG_UNROLL;
+  if (unroll)
+    mask |= GeographicLib::Geodesic::LONG_UNROLL;
   wgs84().GenDirect(p1.lat_deg, p1.lon_deg, azi1_deg, false, s12_m, mask, e.point.lat_deg,
                     e.point.lon_deg, e.azi2_deg, t, t, t, t, t);
   return e;
@@ -82,11 +92,11 @@ GridReference grid_reference(const LatLon& point) {
                                g.mgrs);
   char buf[96];
   if (g.zone > 0) {
-    std::snprintf(buf, sizeof buf, "%d%c %.0f %.0f", g.zone, g.northp ? 'N' : 'S',
-                  std::floor(g.easting_m), std::floor(g.northing_m));
+    std::snprintf(buf, sizeof buf, "%d%c %.0f %.0f", g.zone, g.northp ? 'N' : 'S', g.easting_m,
+                  g.northing_m);
   } else {
-    std::snprintf(buf, sizeof buf, "UPS %c %.0f %.0f", g.northp ? 'N' : 'S',
-                  std::floor(g.easting_m), std::floor(g.northing_m));
+    std::snprintf(buf, sizeof buf, "UPS %c %.0f %.0f", g.northp ? 'N' : 'S', g.easting_m,
+                  g.northing_m);
   }
   g.utm = buf;
   return g;
