@@ -11,25 +11,36 @@
 namespace lobfix {
 
 struct ExportOptions {
-  /// Length of every drawn ray (m); 0 means automatic: 1.2 x the distance to its signal's
-  /// fix (at least 100 m), or default_ray_length_m when that signal has no fix.
+  /// Length of every drawn ray (m), >= 0; 0 means automatic: 1.2 x the distance from its
+  /// station to its signal's fix (at least 100 m), or default_ray_length_m when that signal
+  /// has no fix. Rays are drawn as geodesics with vertices at most min(length / 64, 10 km)
+  /// apart.
   double ray_length_m = 0.0;
+  /// Length of the rays of signals without a fix (m), > 0.
   double default_ray_length_m = 10000.0;
+  /// Vertices per ellipse ring, 8 to 100000.
   int ellipse_vertices = 180;
 };
 
-/// Write a GeoJSON (RFC 7946) FeatureCollection: one Point per bearing's station
-/// (kind "station"), one LineString per bearing (kind "ray"), one Point per fix (kind "fix")
-/// and one Polygon per ellipse (kind "ellipse"; kind "ellipse_scaled" for residual-scaled
-/// ones). Shapes crossing the antimeridian become Multi* geometries.
-/// The file appears atomically (written under a temporary name, then renamed).
-/// @throws OutputError when it cannot be written.
+/// Write a GeoJSON (RFC 7946) FeatureCollection: one Point per distinct position of each
+/// station (kind "station"), one LineString per bearing (kind "ray"), one Point per fix
+/// that has a position (kind "fix", status ok) and one Polygon per ellipse (kind "ellipse";
+/// kind "ellipse_scaled" for residual-scaled ones). Shapes crossing the antimeridian become
+/// Multi* geometries; an ellipse around a pole is closed along the pole. A fix matches the
+/// bearings whose signal equals its signal; BearingFit::index indexes `bearings`.
+/// The file appears atomically (written under a temporary name beside it, flushed, then
+/// renamed over `path`, replacing any file there); on failure nothing is left behind.
+/// @throws InputError for invalid options (field names the option).
+/// @throws OutputError when it cannot be written (the message names `path`).
 void write_geojson(const std::string& path, const std::vector<Bearing>& bearings,
                    const std::vector<FixResult>& results, const ExportOptions& options = {});
 
 /// Write a KML 2.2 document with the same content, in folders (stations, rays, fixes,
-/// ellipses), with shared styles. Atomic like write_geojson.
-/// @throws OutputError when it cannot be written.
+/// ellipses), with shared styles, a name and a description per placemark, rays tessellated
+/// and clamped to the ground. A path ending in .kmz gets a KMZ archive (the document as
+/// doc.kml), any other a plain KML file. Atomic like write_geojson.
+/// @throws InputError for invalid options (field names the option).
+/// @throws OutputError when it cannot be written (the message names `path`).
 void write_kml(const std::string& path, const std::vector<Bearing>& bearings,
                const std::vector<FixResult>& results, const ExportOptions& options = {});
 

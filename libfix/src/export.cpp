@@ -1,0 +1,818 @@
+// Map files of the bearings and fixes through GDAL/OGR (stage "export"): GeoJSON (RFC 7946)
+// through the GeoJSON driver, KML 2.2 (OGC 07-147r2) through the LIBKML driver.
+//
+// The content is built once as a list of MapFeature values (geometry in lon/lat, WGS 84,
+// already cut at the antimeridian by shapes.cpp; attributes; KML name, description and
+// style) and then written by either driver. Files appear atomically: the driver writes
+// into GDAL's in-memory file system (so that every I/O error is ours to see: the GeoJSON
+// driver does not report failed writes), the bytes go to a temporary name in the target's
+// directory, are flushed to disk, and the temporary is renamed over the target.
+// Fields, styles and their meaning: docs/outputs.md.
+#include "lobfix/export.hpp"
+
+#include <cpl_conv.h>
+#include <cpl_error.h>
+#include <cpl_vsi.h>
+#include <fcntl.h>
+#include <ogr_featurestyle.h>
+#include <ogr_geometry.h>
+#include <ogr_spatialref.h>
+#include <ogrsf_frmts.h>
+#include <unistd.h>
+
+#include <algorithm>
+#include <atomic>
+#include <cctype>
+#include <cerrno>
+#include <cmath>
+#include <cstdarg>
+#include <cstddef>
+#include <cstdio>
+#include <cstring>
+#include <filesystem>
+#include <functional>
+#include <map>
+#include <memory>
+#include <mutex>
+#include <set>
+#include <string>
+#include <tuple>
+#include <utility>
+#include <variant>
+#include <vector>
+
+#include "detail/export_geometry.hpp"
+#include "lobfix/error.hpp"
+#include "lobfix/geodesy.hpp"
+#include "lobfix/shapes.hpp"
+
+namespace lobfix {
+
+namespace {
+
+namespace fs = std::filesystem;
+
+// ---------------------------------------------------------------------------------------
+// Text helpers
+
+#if defined(__GNUC__)
+__attribute__((format(printf, 1, 2)))
+#endif
+std::string
+strf(const char* format, ...) {
+  char buf[512];
+  va_list args;
+  va_start(args, format);
+  const int n = std::vsnprintf(buf, sizeof buf, format, args);
+  va_end(args);
+  if (n < 0)
+    return {};
+  if (static_cast<std::size_t>(n) < sizeof buf)
+    return std::string(buf, static_cast<std::size_t>(n));
+  std::string out(static_cast<std::size_t>(n) + 1, '\0');
+  va_start(args, format);
+  std::vsnprintf(out.data(), out.size(), format, args);
+  va_end(args);
+  out.resize(static_cast<std::size_t>(n));
+  return out;
+}
+
+/// "95%", "50%", "99.9%".
+std::string percent(double probability) {
+  return strf("%.4g%%", 100.0 * probability);
+}
+
+/// A distance for people: "850 m", "12.3 km".
+std::string distance_text(double m) {
+  if (m < 10000.0)
+    return strf("%.0f m", m);
+  return strf("%.1f km", m / 1000.0);
+}
+
+/// Bearing in the field's three-digit form: "057.3°" (common practice).
+std::string bearing_text(double azimuth_deg) {
+  return strf("%05.1f\xC2\xB0", wrap_deg360(std::round(azimuth_deg * 10.0) / 10.0));
+}
+
+std::string position_text(const LatLon& p) {
+  std::string out = format_dms(p.lat_deg, true, 1) + " " + format_dms(p.lon_deg, false, 1);
+  out += strf(" (%.6f, %.6f)", p.lat_deg, p.lon_deg);
+  try {
+    const GridReference g = grid_reference(p);
+    out += ", MGRS " + g.mgrs;
+  } catch (const std::exception&) {
+    // No grid reference for an invalid latitude: the degrees above still say where.
+  }
+  return out;
+}
+
+std::string signal_label(const std::string& signal) {
+  return signal.empty() ? std::string("(no signal label)") : signal;
+}
+
+// ---------------------------------------------------------------------------------------
+// Content, independent of the driver
+
+using Value = std::variant<std::monostate, int, double, std::string>;
+
+Value real_or_null(double v) {
+  return std::isfinite(v) ? Value(v) : Value();
+}
+
+struct FieldDef {
+  const char* name;
+  OGRFieldType type;
+};
+
+// Every attribute field, in the order they appear in the GeoJSON layer.
+const FieldDef kFields[] = {
+    {"kind", OFTString},          {"signal", OFTString},     {"station", OFTString},
+    {"row", OFTInteger},          {"time", OFTString},       {"bearing_deg", OFTReal},
+    {"sigma_deg", OFTReal},       {"residual_deg", OFTReal}, {"normalized_residual", OFTReal},
+    {"probability", OFTReal},     {"semi_major_m", OFTReal}, {"semi_minor_m", OFTReal},
+    {"orientation_deg", OFTReal}, {"lat", OFTReal},          {"lon", OFTReal},
+    {"cep_m", OFTReal},           {"chi2", OFTReal},         {"dof", OFTInteger},
+    {"p_value", OFTReal},
+};
+
+enum class Group { stations, rays, fixes, ellipses };
+constexpr Group kGroups[] = {Group::stations, Group::rays, Group::fixes, Group::ellipses};
+
+const char* group_name(Group g) {
+  switch (g) {
+    case Group::stations:
+      return "stations";
+    case Group::rays:
+      return "rays";
+    case Group::fixes:
+      return "fixes";
+    case Group::ellipses:
+      return "ellipses";
+  }
+  return "";
+}
+
+/// The attribute fields each group carries (a KML folder's schema; in GeoJSON the
+/// properties of its features).
+std::vector<const char*> group_fields(Group g) {
+  switch (g) {
+    case Group::stations:
+      return {"kind", "station", "row", "time"};
+    case Group::rays:
+      return {"kind",      "signal",       "station",
+              "row",       "time",         "bearing_deg",
+              "sigma_deg", "residual_deg", "normalized_residual"};
+    case Group::fixes:
+      return {"kind", "signal", "lat", "lon", "cep_m", "chi2", "dof", "p_value"};
+    case Group::ellipses:
+      return {"kind", "signal", "probability", "semi_major_m", "semi_minor_m", "orientation_deg"};
+  }
+  return {};
+}
+
+OGRFieldType field_type(const std::string& name) {
+  for (const FieldDef& f : kFields) {
+    if (name == f.name)
+      return f.type;
+  }
+  return OFTString;
+}
+
+struct MapFeature {
+  Group group = Group::stations;
+  std::map<std::string, Value> fields;
+  std::unique_ptr<OGRGeometry> geometry;
+  std::string name;         ///< KML placemark name
+  std::string description;  ///< KML placemark description
+  std::string style;        ///< name of a shared KML style
+};
+
+struct StyleDef {
+  std::string name;
+  std::string ogr_style;  ///< OGR feature style string
+};
+
+struct MapContent {
+  std::vector<MapFeature> features;
+  std::vector<StyleDef> styles;
+};
+
+// Okabe and Ito's colour-universal-design palette ("Color Universal Design", 2008; hex
+// values [memory]), safe for the common forms of colour blindness; its yellow is left out
+// (too pale on a map).
+// One colour per signal, in order of first appearance; cycled beyond six signals.
+const char* const kPalette[] = {"0072B2", "D55E00", "009E73", "CC79A7", "E69F00", "56B4E9"};
+constexpr std::size_t kPaletteSize = sizeof kPalette / sizeof kPalette[0];
+const char* const kStationColour = "000000";
+
+/// Outline width and fill opacity of an ellipse by its probability: the inner (smaller
+/// probability) ellipse is drawn with a thicker line and a denser fill, so 50% and 95% are
+/// told apart in grey print too: 50% -> 3 px, 35% fill; 95% -> 1.2 px, 8% fill.
+double ellipse_width_px(double probability) {
+  return std::clamp(1.0 + 4.0 * (1.0 - probability), 1.0, 4.0);
+}
+int ellipse_fill_alpha(double probability) {
+  const double opacity = std::clamp(0.05 + 0.6 * (1.0 - probability), 0.05, 0.65);
+  return static_cast<int>(std::lround(255.0 * opacity));
+}
+
+std::unique_ptr<OGRLineString> line_string(const Path& path) {
+  auto line = std::make_unique<OGRLineString>();
+  line->setNumPoints(static_cast<int>(path.size()), FALSE);
+  for (std::size_t i = 0; i < path.size(); ++i) {
+    line->setPoint(static_cast<int>(i), path[i].lon_deg, path[i].lat_deg);
+  }
+  return line;
+}
+
+std::unique_ptr<OGRPolygon> polygon(const Path& ring) {
+  auto linear = std::make_unique<OGRLinearRing>();
+  linear->setNumPoints(static_cast<int>(ring.size()), FALSE);
+  for (std::size_t i = 0; i < ring.size(); ++i) {
+    linear->setPoint(static_cast<int>(i), ring[i].lon_deg, ring[i].lat_deg);
+  }
+  linear->closeRings();
+  auto poly = std::make_unique<OGRPolygon>();
+  poly->addRingDirectly(linear.release());
+  return poly;
+}
+
+/// A ray: LineString, or MultiLineString when it crosses the antimeridian.
+std::unique_ptr<OGRGeometry> line_geometry(const Path& unrolled) {
+  const std::vector<Path> pieces = split_line_antimeridian(unrolled);
+  if (pieces.size() == 1)
+    return line_string(pieces[0]);
+  auto multi = std::make_unique<OGRMultiLineString>();
+  for (const Path& piece : pieces)
+    multi->addGeometryDirectly(line_string(piece).release());
+  return multi;
+}
+
+/// An ellipse: Polygon, or MultiPolygon when it crosses the antimeridian. A ring around a
+/// pole becomes the one polygon closed over the pole.
+std::unique_ptr<OGRGeometry> polygon_geometry(const Path& unrolled) {
+  const std::vector<Path> rings = ring_encloses_pole(unrolled)
+                                      ? std::vector<Path>{detail::pole_closed_ring(unrolled)}
+                                      : split_ring_antimeridian(unrolled);
+  if (rings.size() == 1)
+    return polygon(rings[0]);
+  auto multi = std::make_unique<OGRMultiPolygon>();
+  for (const Path& ring : rings)
+    multi->addGeometryDirectly(polygon(ring).release());
+  return multi;
+}
+
+std::unique_ptr<OGRGeometry> point_geometry(const LatLon& p) {
+  return std::make_unique<OGRPoint>(wrap_deg180(p.lon_deg), p.lat_deg);
+}
+
+/// A fix drawn on the map: status ok and a finite position.
+bool has_position(const Fix& fix) {
+  return fix.ok() && std::isfinite(fix.position.lat_deg) && std::isfinite(fix.position.lon_deg) &&
+         std::fabs(fix.position.lat_deg) <= 90.0;
+}
+
+void check_options(const std::string& path, const ExportOptions& options) {
+  const auto bad = [&](const char* field, const std::string& reason) {
+    throw InputError({path, 0, 0, field, reason});
+  };
+  if (!(std::isfinite(options.ray_length_m) && options.ray_length_m >= 0.0)) {
+    bad("ray_length_m", strf("ray length must be 0 (automatic) or a positive number of metres, "
+                             "got %g",
+                             options.ray_length_m));
+  }
+  if (!(std::isfinite(options.default_ray_length_m) && options.default_ray_length_m > 0.0)) {
+    bad("default_ray_length_m",
+        strf("default ray length must be a positive number of metres, got %g",
+             options.default_ray_length_m));
+  }
+  if (options.ellipse_vertices < 8 || options.ellipse_vertices > 100000) {
+    bad("ellipse_vertices",
+        strf("an ellipse needs 8 to 100000 vertices, got %d", options.ellipse_vertices));
+  }
+}
+
+MapContent build_content(const std::vector<Bearing>& bearings,
+                         const std::vector<FixResult>& results, const ExportOptions& options) {
+  MapContent content;
+
+  // Colours by signal, in order of first appearance (bearings, then fixes).
+  std::map<std::string, std::size_t> colour_of;
+  const auto colour_index = [&](const std::string& signal) {
+    auto it = colour_of.find(signal);
+    if (it == colour_of.end())
+      it = colour_of.emplace(signal, colour_of.size()).first;
+    return it->second % kPaletteSize;
+  };
+  for (const Bearing& b : bearings)
+    colour_index(b.signal);
+  for (const FixResult& r : results)
+    colour_index(r.fix.signal);
+
+  // The first successful fix of each signal, and the fit of each bearing it used.
+  std::map<std::string, const FixResult*> fix_of;
+  std::map<std::size_t, const BearingFit*> fit_of;
+  for (const FixResult& r : results) {
+    if (!has_position(r.fix) || fix_of.count(r.fix.signal) != 0)
+      continue;
+    fix_of.emplace(r.fix.signal, &r);
+    for (const BearingFit& f : r.fix.bearings) {
+      if (f.index < bearings.size() && bearings[f.index].signal == r.fix.signal) {
+        fit_of.emplace(f.index, &f);
+      }
+    }
+  }
+
+  std::set<std::string> styles_made;
+  const auto add_style = [&](const std::string& name, const std::string& ogr_style) {
+    if (styles_made.insert(name).second)
+      content.styles.push_back({name, ogr_style});
+    return name;
+  };
+
+  // Stations: one point per distinct position of each station (a walker moving between
+  // bearings gets one point per place; repeated bearings from one place share a point).
+  std::map<std::tuple<std::string, double, double>, std::size_t> station_at;
+  std::vector<int> station_count;
+  for (const Bearing& b : bearings) {
+    const auto key = std::make_tuple(b.station, b.lat_deg, b.lon_deg);
+    const auto found = station_at.find(key);
+    if (found != station_at.end()) {
+      ++station_count[found->second];
+      continue;
+    }
+    station_at.emplace(key, content.features.size());
+    station_count.push_back(1);
+    MapFeature f;
+    f.group = Group::stations;
+    f.fields = {{"kind", std::string("station")},
+                {"station", b.station},
+                {"row", b.source.line},
+                {"time", b.time_text.empty() ? Value() : Value(b.time_text)}};
+    f.geometry = point_geometry({b.lat_deg, b.lon_deg});
+    f.name = b.station;
+    f.description = "Station " + b.station + " at " + position_text({b.lat_deg, b.lon_deg});
+    f.style = add_style("station", strf("SYMBOL(c:#%sFF,s:1.0);LABEL(c:#%sFF,s:0.8)",
+                                        kStationColour, kStationColour));
+    content.features.push_back(std::move(f));
+  }
+  // Station descriptions end with how many bearings were taken there and the first one.
+  {
+    std::size_t s = 0;
+    for (MapFeature& f : content.features) {
+      const int count = station_count[s++];
+      const auto& row = std::get<int>(f.fields["row"]);
+      const Value& time = f.fields["time"];
+      const std::string when =
+          std::holds_alternative<std::string>(time) ? " at " + std::get<std::string>(time) : "";
+      if (count == 1) {
+        f.description += strf(". One bearing taken here%s (row %d).", when.c_str(), row);
+      } else {
+        f.description +=
+            strf(". %d bearings taken here, the first%s (row %d).", count, when.c_str(), row);
+      }
+    }
+  }
+
+  // Rays.
+  for (std::size_t i = 0; i < bearings.size(); ++i) {
+    const Bearing& b = bearings[i];
+    const LatLon station{b.lat_deg, b.lon_deg};
+    const auto fix = fix_of.find(b.signal);
+    const FixResult* result = fix == fix_of.end() ? nullptr : fix->second;
+    double length_m = options.ray_length_m;
+    if (length_m <= 0.0) {
+      length_m = result == nullptr
+                     ? options.default_ray_length_m
+                     : std::max(100.0, 1.2 * geodesic_inverse(station, result->fix.position).s12_m);
+    }
+    const double max_step_m = std::min(length_m / 64.0, 10000.0);
+    const auto fit = fit_of.find(i);
+    const BearingFit* bf = fit == fit_of.end() ? nullptr : fit->second;
+
+    MapFeature f;
+    f.group = Group::rays;
+    f.fields = {{"kind", std::string("ray")},
+                {"signal", b.signal},
+                {"station", b.station},
+                {"row", b.source.line},
+                {"time", b.time_text.empty() ? Value() : Value(b.time_text)},
+                {"bearing_deg", real_or_null(b.azimuth_deg)},
+                {"sigma_deg", real_or_null(b.sigma_deg)},
+                {"residual_deg", bf ? real_or_null(bf->residual_deg) : Value()},
+                {"normalized_residual", bf ? real_or_null(bf->normalized_residual) : Value()}};
+    f.geometry = line_geometry(ray_path(station, b.azimuth_deg, length_m, max_step_m));
+    f.name = b.station + " " + bearing_text(b.azimuth_deg);
+    f.description = strf("Line of bearing %s true, %.1f\xC2\xB0 (1 sigma), from station %s",
+                         bearing_text(b.azimuth_deg).c_str(), b.sigma_deg, b.station.c_str());
+    if (!b.time_text.empty())
+      f.description += " at " + b.time_text;
+    f.description += strf(" (row %d), signal %s. ", b.source.line, signal_label(b.signal).c_str());
+    if (bf != nullptr) {
+      // Residual = measured - predicted: positive when the ray points clockwise of the fix.
+      f.description +=
+          strf("It points %.2f\xC2\xB0 %s of the fix (%.2f sigma). ", std::fabs(bf->residual_deg),
+               bf->residual_deg >= 0.0 ? "clockwise" : "anticlockwise",
+               std::fabs(bf->normalized_residual));
+    } else if (result != nullptr) {
+      f.description += "Not used in the fix. ";
+    } else {
+      f.description += "No fix for this signal. ";
+    }
+    f.description += "Drawn " + distance_text(length_m) + " long.";
+    const std::size_t colour = colour_index(b.signal);
+    f.style = add_style(strf("ray-%zu", colour), strf("PEN(c:#%sFF,w:2px)", kPalette[colour]));
+    content.features.push_back(std::move(f));
+  }
+
+  // Fixes and their ellipses (only signals with a position).
+  for (const FixResult& r : results) {
+    if (!has_position(r.fix))
+      continue;
+    const Fix& fx = r.fix;
+    const Uncertainty& u = r.uncertainty;
+    const std::size_t colour = colour_index(fx.signal);
+    const std::string label = signal_label(fx.signal);
+    MapFeature f;
+    f.group = Group::fixes;
+    f.fields = {{"kind", std::string("fix")},
+                {"signal", fx.signal},
+                {"lat", real_or_null(fx.position.lat_deg)},
+                {"lon", real_or_null(wrap_deg180(fx.position.lon_deg))},
+                {"cep_m", real_or_null(u.cep_m)},
+                {"chi2", real_or_null(fx.chi2)},
+                {"dof", fx.dof},
+                {"p_value", real_or_null(u.p_value)}};
+    f.geometry = point_geometry(fx.position);
+    f.name = fx.signal.empty() ? std::string("fix") : "fix " + fx.signal;
+    f.description = "Fix of signal " + label + " at " + position_text(fx.position) + ". ";
+    f.description += "The transmitter is within " + distance_text(u.cep_m) +
+                     " of it with 50% probability (CEP), if the stated bearing sigmas hold. ";
+    f.description += strf("%zu bearings, chi-square %.2f with %d degrees of freedom",
+                          fx.bearings.size(), fx.chi2, fx.dof);
+    if (fx.dof > 0)
+      f.description += strf(", p-value %.3f", u.p_value);
+    f.description += ".";
+    if (u.sigmas_too_small) {
+      f.description +=
+          " The bearings scatter more than their stated sigmas: trust the scaled ellipses.";
+    }
+    if (!fx.message.empty())
+      f.description += " " + fx.message;
+    f.style = add_style(strf("fix-%zu", colour), strf("SYMBOL(c:#%sFF,s:1.3);LABEL(c:#%sFF,s:1.0)",
+                                                      kPalette[colour], kPalette[colour]));
+    content.features.push_back(std::move(f));
+
+    const auto add_ellipses = [&](const std::vector<Ellipse>& ellipses, bool scaled) {
+      for (const Ellipse& e : ellipses) {
+        // Nothing to draw for an ellipse that is not one (NaN or negative axes).
+        if (!(std::isfinite(e.probability) && std::isfinite(e.semi_major_m) &&
+              std::isfinite(e.semi_minor_m) && std::isfinite(e.orientation_deg) &&
+              e.semi_major_m > 0.0 && e.semi_minor_m >= 0.0)) {
+          continue;
+        }
+        MapFeature g;
+        g.group = Group::ellipses;
+        g.fields = {{"kind", std::string(scaled ? "ellipse_scaled" : "ellipse")},
+                    {"signal", fx.signal},
+                    {"probability", real_or_null(e.probability)},
+                    {"semi_major_m", real_or_null(e.semi_major_m)},
+                    {"semi_minor_m", real_or_null(e.semi_minor_m)},
+                    {"orientation_deg", real_or_null(e.orientation_deg)}};
+        g.geometry = polygon_geometry(ellipse_ring(fx.position, e, options.ellipse_vertices));
+        g.name = percent(e.probability) + " ellipse";
+        if (!fx.signal.empty())
+          g.name += " " + fx.signal;
+        if (scaled)
+          g.name += " (scaled)";
+        g.description = percent(e.probability) + " confidence ellipse of the fix of signal " +
+                        label + ": semi-major " + distance_text(e.semi_major_m) + ", semi-minor " +
+                        distance_text(e.semi_minor_m) + ", major axis " +
+                        bearing_text(e.orientation_deg) + " true.";
+        if (scaled) {
+          g.description +=
+              " Widened by the residuals, because the bearings scattered more than stated.";
+        } else {
+          g.description += " From the stated bearing sigmas.";
+        }
+        const long per_mille = std::lround(e.probability * 1000.0);
+        const double width_px = ellipse_width_px(e.probability);
+        const int alpha = scaled ? 0 : ellipse_fill_alpha(e.probability);
+        g.style = add_style(strf("ellipse%s-%zu-%03ld", scaled ? "-scaled" : "", colour, per_mille),
+                            strf("PEN(c:#%sFF,w:%.1fpx);BRUSH(fc:#%s%02X)", kPalette[colour],
+                                 width_px, kPalette[colour], alpha));
+        content.features.push_back(std::move(g));
+      }
+    };
+    add_ellipses(u.ellipses, false);
+    add_ellipses(u.scaled_ellipses, true);
+  }
+  return content;
+}
+
+// ---------------------------------------------------------------------------------------
+// Writing through GDAL
+
+void register_gdal() {
+  static std::once_flag once;
+  std::call_once(once, [] { GDALAllRegister(); });
+}
+
+/// While alive, GDAL's messages go to no one (the library never prints); the last one is
+/// kept for OutputError.
+class QuietGdal {
+ public:
+  QuietGdal() {
+    CPLPushErrorHandler(CPLQuietErrorHandler);
+    CPLErrorReset();
+  }
+  ~QuietGdal() { CPLPopErrorHandler(); }
+  QuietGdal(const QuietGdal&) = delete;
+  QuietGdal& operator=(const QuietGdal&) = delete;
+};
+
+[[noreturn]] void fail(const std::string& path, const std::string& what) {
+  std::string message = "cannot write " + path + ": " + what;
+  const char* gdal = CPLGetLastErrorMsg();
+  if (gdal != nullptr && *gdal != '\0')
+    message += std::string(" (GDAL: ") + gdal + ")";
+  throw OutputError(message);
+}
+
+void check(OGRErr err, const std::string& path, const std::string& what) {
+  if (err != OGRERR_NONE)
+    fail(path, what);
+}
+
+/// WGS 84 with longitude first (x) and latitude second (y), as GeoJSON and KML write them.
+OGRSpatialReference wgs84_lon_lat() {
+  OGRSpatialReference srs;
+  srs.SetWellKnownGeogCS("WGS84");
+  srs.SetAxisMappingStrategy(OAMS_TRADITIONAL_GIS_ORDER);
+  return srs;
+}
+
+void remove_quietly(const fs::path& p) {
+  std::error_code ec;
+  fs::remove(p, ec);
+}
+
+/// A unique number per write in this process, for temporary names.
+unsigned next_serial() {
+  static std::atomic<unsigned> counter{0};
+  return counter.fetch_add(1);
+}
+
+/// "<dir>/.<stem>.tmp-<pid>-<n><ext>": hidden, unique to this process and call, and with
+/// the target's extension.
+fs::path temporary_for(const fs::path& target, const std::string& extension, unsigned serial) {
+  const std::string name = "." + target.stem().string() + ".tmp-" +
+                           std::to_string(static_cast<long>(::getpid())) + "-" +
+                           std::to_string(serial) + extension;
+  return target.parent_path() / name;
+}
+
+/// GDAL's in-memory file system directory of one write; removed with everything in it.
+class MemoryDir {
+ public:
+  explicit MemoryDir(unsigned serial)
+      : dir_("/vsimem/lobfix-export-" + std::to_string(static_cast<long>(::getpid())) + "-" +
+             std::to_string(serial)) {}
+  ~MemoryDir() { VSIRmdirRecursive(dir_.c_str()); }
+  MemoryDir(const MemoryDir&) = delete;
+  MemoryDir& operator=(const MemoryDir&) = delete;
+  const std::string& dir() const { return dir_; }
+
+ private:
+  std::string dir_;
+};
+
+/// Write `size` bytes to a new file `temp` and flush them to the disk, checking every
+/// step (a full disk shows up here, not as a short file).
+void write_bytes(const fs::path& temp, const GByte* data, std::size_t size,
+                 const std::string& path) {
+  const auto os_fail = [&](const char* what) {
+    const std::string reason = std::strerror(errno);
+    remove_quietly(temp);
+    CPLErrorReset();
+    fail(path, std::string(what) + ": " + reason);
+  };
+  const int fd = ::open(temp.c_str(), O_WRONLY | O_CREAT | O_EXCL | O_CLOEXEC, 0666);
+  if (fd < 0) {
+    const std::string reason = std::strerror(errno);
+    CPLErrorReset();
+    fail(path, "cannot create a file there: " + reason);
+  }
+  std::size_t done = 0;
+  while (done < size) {
+    const ssize_t n = ::write(fd, data + done, size - done);
+    if (n < 0 && errno == EINTR)
+      continue;
+    if (n <= 0) {
+      const int saved = errno;
+      ::close(fd);
+      errno = saved;
+      os_fail("writing failed");
+    }
+    done += static_cast<std::size_t>(n);
+  }
+  if (::fsync(fd) != 0) {
+    const int saved = errno;
+    ::close(fd);
+    errno = saved;
+    os_fail("flushing to disk failed");
+  }
+  if (::close(fd) != 0)
+    os_fail("closing failed");
+}
+
+/// Create a dataset with `driver_name` in GDAL's memory file system, let `fill` write into
+/// it and close it (every GDAL error checked); with as_kmz, pack the KML it wrote into a
+/// zip archive as doc.kml. Then write the bytes under a temporary name beside `path`
+/// ("<dir>/.<stem>.tmp-<pid>-<n><extension>"), flush them and rename that onto `path`
+/// (replacing a file there). On any failure nothing is left behind and OutputError names
+/// `path`.
+void write_atomically(const std::string& path, const char* driver_name,
+                      const std::string& extension, char** dataset_options,
+                      const std::function<void(GDALDataset&)>& fill, bool as_kmz = false) {
+  register_gdal();
+  const QuietGdal quiet;
+  GDALDriver* driver = GetGDALDriverManager()->GetDriverByName(driver_name);
+  if (driver == nullptr)
+    fail(path, std::string("GDAL has no ") + driver_name + " driver");
+  const fs::path target(path);
+  if (target.filename().empty())
+    fail(path, "the path names no file");
+  const unsigned serial = next_serial();
+  const MemoryDir memory(serial);
+  const std::string memory_file = memory.dir() + (as_kmz ? "/doc.kml" : "/map" + extension);
+
+  GDALDataset* ds = driver->Create(memory_file.c_str(), 0, 0, 0, GDT_Unknown, dataset_options);
+  if (ds == nullptr)
+    fail(path, "the driver cannot create the file");
+  try {
+    fill(*ds);
+  } catch (...) {
+    GDALClose(ds);
+    throw;
+  }
+  CPLErrorReset();
+  GDALClose(ds);
+  if (CPLGetLastErrorType() >= CE_Failure)
+    fail(path, "the driver failed to finish the file");
+  vsi_l_offset size = 0;
+  const GByte* data = VSIGetMemFileBuffer(memory_file.c_str(), &size, FALSE);
+  if (data != nullptr && as_kmz) {
+    // KMZ: the one KML file as doc.kml at the root of a zip archive.
+    const std::string archive = memory.dir() + "/map.kmz";
+    VSILFILE* out = VSIFOpenL(("/vsizip/" + archive + "/doc.kml").c_str(), "wb");
+    if (out == nullptr)
+      fail(path, "cannot start the KMZ archive");
+    const bool written = VSIFWriteL(data, 1, static_cast<std::size_t>(size), out) == size;
+    if (VSIFCloseL(out) != 0 || !written)
+      fail(path, "cannot write the KMZ archive");
+    data = VSIGetMemFileBuffer(archive.c_str(), &size, FALSE);
+  }
+  if (data == nullptr)
+    fail(path, "the driver wrote no file");
+
+  const fs::path temp = temporary_for(target, extension, serial);
+  remove_quietly(temp);  // a stale one of an earlier process with the same id
+  write_bytes(temp, data, static_cast<std::size_t>(size), path);
+  std::error_code ec;
+  fs::rename(temp, target, ec);
+  if (ec) {
+    remove_quietly(temp);
+    CPLErrorReset();
+    fail(path, "cannot move the finished file into place: " + ec.message());
+  }
+}
+
+OGRLayer* create_layer(GDALDataset& ds, const std::string& path, const char* name,
+                       OGRwkbGeometryType type, char** layer_options) {
+  OGRSpatialReference srs = wgs84_lon_lat();
+  OGRLayer* layer = ds.CreateLayer(name, &srs, type, layer_options);
+  if (layer == nullptr)
+    fail(path, std::string("cannot create layer ") + name);
+  return layer;
+}
+
+void create_field(OGRLayer& layer, const std::string& path, const char* name, OGRFieldType type) {
+  OGRFieldDefn defn(name, type);
+  check(layer.CreateField(&defn), path, std::string("cannot create field ") + name);
+}
+
+void set_value(OGRFeature& feature, const std::string& name, const Value& value) {
+  const int i = feature.GetFieldIndex(name.c_str());
+  if (i < 0)
+    return;
+  if (std::holds_alternative<int>(value)) {
+    feature.SetField(i, std::get<int>(value));
+  } else if (std::holds_alternative<double>(value)) {
+    feature.SetField(i, std::get<double>(value));
+  } else if (std::holds_alternative<std::string>(value)) {
+    feature.SetField(i, std::get<std::string>(value).c_str());
+  } else {
+    feature.SetFieldNull(i);
+  }
+}
+
+void write_feature(OGRLayer& layer, const std::string& path, const MapFeature& mf, bool kml) {
+  OGRFeatureUniquePtr feature(OGRFeature::CreateFeature(layer.GetLayerDefn()));
+  if (!feature)
+    fail(path, "out of memory");
+  for (const auto& [name, value] : mf.fields)
+    set_value(*feature, name, value);
+  if (kml) {
+    set_value(*feature, "Name", mf.name);
+    set_value(*feature, "description", mf.description);
+    if (mf.group == Group::rays) {
+      set_value(*feature, "tessellate", 1);
+      set_value(*feature, "altitudeMode", std::string("clampToGround"));
+    }
+    feature->SetStyleString(("@" + mf.style).c_str());
+  }
+  check(feature->SetGeometry(mf.geometry.get()), path, "cannot set a geometry");
+  check(layer.CreateFeature(feature.get()), path,
+        "cannot write the " + std::string(group_name(mf.group)) + " feature " + mf.name);
+}
+
+std::string lower_extension(const std::string& path) {
+  std::string ext = fs::path(path).extension().string();
+  for (char& c : ext)
+    c = static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
+  return ext;
+}
+
+}  // namespace
+
+void write_geojson(const std::string& path, const std::vector<Bearing>& bearings,
+                   const std::vector<FixResult>& results, const ExportOptions& options) {
+  check_options(path, options);
+  const MapContent content = build_content(bearings, results, options);
+  std::string extension = fs::path(path).extension().string();
+  if (extension.empty())
+    extension = ".geojson";
+  write_atomically(path, "GeoJSON", extension, nullptr, [&](GDALDataset& ds) {
+    // RFC7946=YES: rings rewound counter-clockwise, WGS 84, no "crs" member. The shapes are
+    // already cut at the antimeridian here, so GDAL's own heuristic cutting stays off.
+    // COORDINATE_PRECISION=7: 1e-7 deg, about 1 cm.
+    CPLStringList layer_options;
+    layer_options.SetNameValue("RFC7946", "YES");
+    layer_options.SetNameValue("COORDINATE_PRECISION", "7");
+    layer_options.SetNameValue("WRAPDATELINE", "NO");
+    layer_options.SetNameValue("WRITE_NAME", "YES");
+    OGRLayer* layer = create_layer(ds, path, "lobfix", wkbUnknown, layer_options.List());
+    for (const FieldDef& f : kFields)
+      create_field(*layer, path, f.name, f.type);
+    for (const MapFeature& mf : content.features)
+      write_feature(*layer, path, mf, false);
+  });
+}
+
+void write_kml(const std::string& path, const std::vector<Bearing>& bearings,
+               const std::vector<FixResult>& results, const ExportOptions& options) {
+  check_options(path, options);
+  const MapContent content = build_content(bearings, results, options);
+  // LIBKML chooses by the extension: .kml one file, .kmz an archive of one file per layer
+  // (with relative links between them that not every viewer resolves), anything else a
+  // directory. So LIBKML always writes one .kml file, and a .kmz target gets that file as
+  // doc.kml in a zip archive.
+  const bool as_kmz = lower_extension(path) == ".kmz";
+  const std::string extension = as_kmz ? ".kmz" : ".kml";
+  const auto fill = [&](GDALDataset& ds) {
+    // Shared styles in the Document; each placemark points at one by styleUrl.
+    OGRStyleTable table;
+    for (const StyleDef& s : content.styles) {
+      if (!table.AddStyle(s.name.c_str(), s.ogr_style.c_str())) {
+        fail(path, "cannot add style " + s.name);
+      }
+    }
+    ds.SetStyleTable(&table);
+    for (Group g : kGroups) {
+      const bool points = g == Group::stations || g == Group::fixes;
+      CPLStringList layer_options;
+      layer_options.SetNameValue("FOLDER", "YES");  // a <Folder>, not a nested <Document>
+      OGRLayer* layer = create_layer(ds, path, group_name(g), points ? wkbPoint : wkbUnknown,
+                                     layer_options.List());
+      // LIBKML maps these to <name>, <description>, <tessellate> and <altitudeMode>.
+      create_field(*layer, path, "Name", OFTString);
+      create_field(*layer, path, "description", OFTString);
+      if (g == Group::rays) {
+        create_field(*layer, path, "tessellate", OFTInteger);
+        create_field(*layer, path, "altitudeMode", OFTString);
+      }
+      for (const char* name : group_fields(g))
+        create_field(*layer, path, name, field_type(name));
+      for (const MapFeature& mf : content.features) {
+        if (mf.group == g)
+          write_feature(*layer, path, mf, true);
+      }
+    }
+  };
+  CPLStringList dataset_options;
+  dataset_options.SetNameValue("NAME", "lobfix");
+  write_atomically(path, "LIBKML", extension, dataset_options.List(), fill, as_kmz);
+}
+
+}  // namespace lobfix
