@@ -1,2 +1,39 @@
+// The lobfix command-line tool: parses the command line and hands over to a subcommand.
+#include <CLI/CLI.hpp>
 #include <cstdio>
-int main() { std::puts("lobfix " LOBFIX_VERSION); return 0; }
+#include <iostream>
+
+#include "exit_codes.hpp"
+#include "solve_command.hpp"
+
+int main(int argc, char** argv) {
+  CLI::App app{
+      "lobfix: turns lines of bearing from several stations into a transmitter fix with a "
+      "confidence ellipse, and into map files for field teams.\n"
+      "A fix is an estimate: reflections mislead, and the lead agency's procedures come first."};
+  app.set_version_flag("--version", std::string("lobfix ") + LOBFIX_VERSION);
+  app.require_subcommand(1);
+  app.footer(
+      "Run 'lobfix solve --help' for the bearing file format and options.\n"
+      "Exit codes: 0 fix found, 1 bad input, 2 bad command line, 3 no fix for some "
+      "signal, 4 output not written.");
+
+  lobfix_app::SolveArgs solve_args;
+  CLI::App* solve = lobfix_app::add_solve_command(app, solve_args);
+
+  try {
+    app.parse(argc, argv);
+  } catch (const CLI::CallForHelp& e) {
+    return app.exit(e);
+  } catch (const CLI::CallForAllHelp& e) {
+    return app.exit(e);
+  } catch (const CLI::CallForVersion& e) {
+    return app.exit(e);
+  } catch (const CLI::ParseError& e) {
+    app.exit(e);
+    return lobfix_app::kExitUsage;
+  }
+  if (solve->parsed())
+    return lobfix_app::run_solve(solve_args);
+  return lobfix_app::kExitUsage;
+}

@@ -41,8 +41,8 @@ struct Fix {
   LatLon position;
   /// Covariance of the east/north error at the fix (m^2), row-major [[ee, en], [ne, nn]].
   std::array<std::array<double, 2>, 2> covariance_en_m2{};
-  double chi2 = 0.0;  ///< sum of squared normalised residuals
-  int dof = 0;        ///< degrees of freedom, n - 2
+  double chi2 = 0.0;                 ///< sum of squared normalised residuals
+  int dof = 0;                       ///< degrees of freedom, n - 2
   std::vector<BearingFit> bearings;  ///< one per bearing used, in input order
   int iterations = 0;                ///< solver iterations (all re-centrings together)
   double start_distance_m = 0.0;     ///< distance from the start point to the fix

@@ -54,13 +54,13 @@ void geo_to_local(const LatLon& centre, const LatLon& point, double& x_m, double
 
 /// Grid references of a point: UTM/UPS and MGRS.
 struct GridReference {
-  int zone = 0;          ///< UTM zone 1..60, 0 for UPS (polar)
-  bool northp = true;    ///< northern hemisphere
+  int zone = 0;        ///< UTM zone 1..60, 0 for UPS (polar)
+  bool northp = true;  ///< northern hemisphere
   double easting_m = 0.0;
   double northing_m = 0.0;
   double convergence_deg = 0.0;  ///< meridian convergence (grid north vs true north)
-  std::string utm;       ///< e.g. "33N 512345 6123456"
-  std::string mgrs;      ///< 1 m precision, e.g. "33VWG1234523456" (truncated, per MGRS)
+  std::string utm;               ///< e.g. "33N 512345 6123456"
+  std::string mgrs;              ///< 1 m precision, e.g. "33VWG1234523456" (truncated, per MGRS)
 };
 /// @throws InputError if the latitude is outside [-90, 90].
 GridReference grid_reference(const LatLon& point);

@@ -43,13 +43,13 @@ Fix solve_fix(const std::vector<Bearing>& bearings, const SolveOptions& options 
 /// The start point: the robust centre of the pairwise crossings of the rays (each pair
 /// crossed on the ellipsoid via the gnomonic projection, keeping only crossings ahead of
 /// both stations and within the maximum range). std::nullopt when no pair crosses.
-std::optional<LatLon> start_point(const std::vector<Bearing>& bearings, const SolveOptions& options);
+std::optional<LatLon> start_point(const std::vector<Bearing>& bearings,
+                                  const SolveOptions& options);
 
 /// Where two rays cross on the ellipsoid, if they do ahead of both stations and within
 /// max_range_m of both.
 std::optional<LatLon> cross_rays(const LatLon& station_a, double azimuth_a_deg,
-                                 const LatLon& station_b, double azimuth_b_deg,
-                                 double max_range_m);
+                                 const LatLon& station_b, double azimuth_b_deg, double max_range_m);
 
 /// Effective bearing sigma (deg) of a bearing seen from a point at the far end of the
 /// geodesic `line` (station = point 1): sqrt(sigma^2 + (pos_sigma |M21| / m12)^2).

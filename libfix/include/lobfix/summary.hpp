@@ -1,0 +1,37 @@
+// lobfix: the human and machine summaries of a solve (stage "export"). The library builds
+// the text; the command-line tool prints it. Fields: docs/outputs.md.
+#pragma once
+
+#include <string>
+#include <vector>
+
+#include "lobfix/bearing.hpp"
+#include "lobfix/error.hpp"
+#include "lobfix/uncertainty.hpp"
+
+namespace lobfix {
+
+/// What the run read, for the summaries.
+struct RunInfo {
+  std::string input;                 ///< input file name as given
+  int rows_read = 0;                 ///< data rows seen
+  std::vector<Diagnostic> skipped;   ///< rows left out (with --skip-bad)
+  std::vector<Diagnostic> warnings;  ///< e.g. unknown columns
+  std::string version;               ///< lobfix version
+};
+
+/// A plain-text summary for a field user: each fix in decimal degrees, DMS, MGRS and UTM,
+/// the ellipses, CEP, the goodness of fit in words, and a per-bearing residual table; a
+/// signal without a fix gets its reason instead.
+std::string text_summary(const RunInfo& run, const std::vector<Bearing>& bearings,
+                         const std::vector<FixResult>& results);
+
+/// The same as one JSON document: {"lobfix": version, "input": ..., "fixes": [...]}
+/// (schema in docs/outputs.md). Numbers are plain JSON numbers; NaN never appears.
+std::string json_summary(const RunInfo& run, const std::vector<Bearing>& bearings,
+                         const std::vector<FixResult>& results);
+
+/// The cautions printed with every result and carried by the report.
+const char* safety_note();
+
+}  // namespace lobfix

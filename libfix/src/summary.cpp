@@ -1,0 +1,245 @@
+#include "lobfix/summary.hpp"
+
+#include <fmt/format.h>
+
+#include <cctype>
+#include <cmath>
+#include <nlohmann/json.hpp>
+#include <set>
+#include <string>
+
+#include "lobfix/geodesy.hpp"
+
+namespace lobfix {
+
+namespace {
+
+std::string distance_text(double m) {
+  if (!std::isfinite(m))
+    return "-";
+  if (m < 1000.0)
+    return fmt::format("{:.0f} m", m);
+  if (m < 100000.0)
+    return fmt::format("{:.2f} km", m / 1000.0);
+  return fmt::format("{:.0f} km", m / 1000.0);
+}
+
+// Greedy word wrap to `width` columns, for long notes in the terminal.
+std::string wrap_words(const std::string& text, std::size_t width) {
+  std::string out;
+  std::size_t line = 0;
+  std::size_t i = 0;
+  while (i < text.size()) {
+    const std::size_t j = std::min(text.find(' ', i), text.size());
+    const std::size_t len = j - i;
+    if (line > 0 && line + 1 + len > width) {
+      out += '\n';
+      line = 0;
+    } else if (line > 0) {
+      out += ' ';
+      ++line;
+    }
+    out.append(text, i, len);
+    line += len;
+    i = j + 1;
+  }
+  return out;
+}
+
+// "13TEL1238724266" -> "13T EL 12387 24266", as grid references are read aloud and written
+// on maps (common practice); the JSON keeps the compact form of the MGRS standard.
+std::string spaced_mgrs(const std::string& mgrs) {
+  std::size_t digits = mgrs.size();
+  while (digits > 0 && std::isdigit(static_cast<unsigned char>(mgrs[digits - 1])))
+    --digits;
+  const std::size_t n = mgrs.size() - digits;
+  if (digits < 2 || n % 2 != 0)
+    return mgrs;
+  return mgrs.substr(0, digits - 2) + " " + mgrs.substr(digits - 2, 2) + " " +
+         mgrs.substr(digits, n / 2) + " " + mgrs.substr(digits + n / 2);
+}
+
+std::string signal_title(const std::string& signal) {
+  return signal.empty() ? std::string("(no signal label)") : "signal '" + signal + "'";
+}
+
+// The fit in words, for the field user.
+std::string fit_words(const Fix& fix, const Uncertainty& u) {
+  if (fix.dof <= 0) {
+    return "two bearings: no check of the stated sigmas is possible; a third bearing from "
+           "another place would test them";
+  }
+  if (u.sigmas_too_small) {
+    return fmt::format(
+        "the bearings scatter about {:.1f} times more than their stated sigmas (p = {:.3g}); "
+        "suspect reflections, a wrong bearing, a moving transmitter, or sigmas set too small. "
+        "The residual-scaled ellipses below are the more honest ones",
+        std::sqrt(u.variance_factor), u.p_value);
+  }
+  return fmt::format("consistent with the stated sigmas (p = {:.3g})", u.p_value);
+}
+
+std::string ellipse_line(const Ellipse& e) {
+  return fmt::format("{:>4.0f}%  {} x {} (semi-axes), major axis {:05.1f} deg", e.probability * 100,
+                     distance_text(e.semi_major_m), distance_text(e.semi_minor_m),
+                     e.orientation_deg);
+}
+
+nlohmann::ordered_json ellipse_json(const Ellipse& e) {
+  return {{"probability", e.probability},
+          {"semi_major_m", e.semi_major_m},
+          {"semi_minor_m", e.semi_minor_m},
+          {"orientation_deg", e.orientation_deg}};
+}
+
+nlohmann::ordered_json diagnostic_json(const Diagnostic& d) {
+  return {{"file", d.file},   {"line", d.line},     {"column", d.column},
+          {"field", d.field}, {"reason", d.reason}, {"message", d.to_string()}};
+}
+
+}  // namespace
+
+const char* safety_note() {
+  return "A fix is an estimate, not a location: reflections from hills, buildings and "
+         "vehicles mislead bearings, and the true position can lie outside every ellipse. "
+         "Local regulations, licensing and the lead agency's procedures come first.";
+}
+
+std::string text_summary(const RunInfo& run, const std::vector<Bearing>& bearings,
+                         const std::vector<FixResult>& results) {
+  std::string out;
+  out +=
+      fmt::format("lobfix {}: {} bearings read from {}", run.version, bearings.size(), run.input);
+  if (!run.skipped.empty()) {
+    std::set<int> lines;
+    for (const Diagnostic& d : run.skipped)
+      lines.insert(d.line);
+    out += fmt::format(", {} bad {} skipped (listed on stderr)", lines.size(),
+                       lines.size() == 1 ? "row" : "rows");
+  }
+  out += "\n";
+  for (const FixResult& r : results) {
+    const Fix& f = r.fix;
+    const Uncertainty& u = r.uncertainty;
+    out += "\n";
+    std::size_t count = 0;
+    for (const Bearing& b : bearings)
+      count += b.signal == f.signal ? 1 : 0;
+    out += fmt::format("== {} ({} bearings) ==\n", signal_title(f.signal), count);
+    if (!f.ok()) {
+      out += fmt::format("NO FIX: {}\n", f.message);
+      continue;
+    }
+    const GridReference g = grid_reference(f.position);
+    out += fmt::format("Fix        {:.6f}, {:.6f}  (lat, lon; WGS 84)\n", f.position.lat_deg,
+                       f.position.lon_deg);
+    out += fmt::format("           {}  {}\n", format_dms(f.position.lat_deg, true),
+                       format_dms(f.position.lon_deg, false));
+    out += fmt::format("MGRS       {}\n", spaced_mgrs(g.mgrs));
+    out += fmt::format("UTM        {}\n", g.utm);
+    out += "Ellipses   (from the stated sigmas)\n";
+    for (const Ellipse& e : u.ellipses)
+      out += "           " + ellipse_line(e) + "\n";
+    out += fmt::format("CEP        {} (radius holding 50%)\n", distance_text(u.cep_m));
+    out += fmt::format("Fit        chi-square {:.2f} on {} degrees of freedom\n", f.chi2, f.dof);
+    // Indent continuation lines under the first.
+    std::string words = wrap_words(fit_words(f, u), 78);
+    for (std::size_t k = 0; (k = words.find('\n', k)) != std::string::npos; k += 12) {
+      words.replace(k, 1, "\n           ");
+    }
+    out += "           " + words + "\n";
+    if (u.sigmas_too_small) {
+      out += "Ellipses   (scaled by the residuals, F distribution)\n";
+      for (const Ellipse& e : u.scaled_ellipses)
+        out += "           " + ellipse_line(e) + "\n";
+      out += fmt::format("CEP        {} (scaled)\n", distance_text(u.scaled_cep_m));
+    }
+    out += "\n";
+    out += fmt::format("{:>6}  {:<14} {:<24} {:>8} {:>6} {:>9} {:>7} {:>10}\n", "line", "station",
+                       "time", "bearing", "sigma", "residual", "resid/s", "range");
+    for (const BearingFit& bf : f.bearings) {
+      const Bearing& b = bearings[bf.index];
+      out +=
+          fmt::format("{:>6}  {:<14} {:<24} {:>8.1f} {:>6.2f} {:>+9.2f} {:>+7.2f} {:>10}\n",
+                      b.source.line, b.station, b.time_text, b.azimuth_deg, bf.effective_sigma_deg,
+                      bf.residual_deg, bf.normalized_residual, distance_text(bf.range_m));
+    }
+  }
+  out += "\n";
+  out += wrap_words(safety_note(), 90);
+  out += "\n";
+  return out;
+}
+
+std::string json_summary(const RunInfo& run, const std::vector<Bearing>& bearings,
+                         const std::vector<FixResult>& results) {
+  nlohmann::ordered_json doc;
+  doc["lobfix"] = run.version;
+  nlohmann::ordered_json input = {
+      {"file", run.input}, {"rows_read", run.rows_read}, {"bearings_used", bearings.size()}};
+  input["skipped"] = nlohmann::ordered_json::array();
+  for (const Diagnostic& d : run.skipped)
+    input["skipped"].push_back(diagnostic_json(d));
+  input["warnings"] = nlohmann::ordered_json::array();
+  for (const Diagnostic& d : run.warnings)
+    input["warnings"].push_back(diagnostic_json(d));
+  doc["input"] = input;
+  doc["fixes"] = nlohmann::ordered_json::array();
+  for (const FixResult& r : results) {
+    const Fix& f = r.fix;
+    const Uncertainty& u = r.uncertainty;
+    nlohmann::ordered_json j;
+    j["signal"] = f.signal;
+    j["status"] = to_string(f.status);
+    j["message"] = f.message;
+    if (f.ok()) {
+      const GridReference g = grid_reference(f.position);
+      j["lat"] = f.position.lat_deg;
+      j["lon"] = f.position.lon_deg;
+      j["mgrs"] = g.mgrs;
+      j["utm"] = {{"zone", g.zone},
+                  {"hemisphere", g.northp ? "N" : "S"},
+                  {"easting_m", g.easting_m},
+                  {"northing_m", g.northing_m},
+                  {"text", g.utm}};
+      j["covariance_en_m2"] = {{f.covariance_en_m2[0][0], f.covariance_en_m2[0][1]},
+                               {f.covariance_en_m2[1][0], f.covariance_en_m2[1][1]}};
+      j["ellipses"] = nlohmann::ordered_json::array();
+      for (const Ellipse& e : u.ellipses)
+        j["ellipses"].push_back(ellipse_json(e));
+      j["cep_m"] = u.cep_m;
+      j["chi2"] = f.chi2;
+      j["dof"] = f.dof;
+      j["p_value"] = u.p_value;
+      j["sigmas_too_small"] = u.sigmas_too_small;
+      j["variance_factor"] = u.variance_factor;
+      j["scaled_ellipses"] = nlohmann::ordered_json::array();
+      for (const Ellipse& e : u.scaled_ellipses)
+        j["scaled_ellipses"].push_back(ellipse_json(e));
+      if (u.sigmas_too_small)
+        j["scaled_cep_m"] = u.scaled_cep_m;
+      j["iterations"] = f.iterations;
+      j["bearings"] = nlohmann::ordered_json::array();
+      for (const BearingFit& bf : f.bearings) {
+        const Bearing& b = bearings[bf.index];
+        j["bearings"].push_back({{"row", b.source.line},
+                                 {"station", b.station},
+                                 {"time", b.time_text},
+                                 {"lat", b.lat_deg},
+                                 {"lon", b.lon_deg},
+                                 {"bearing_deg", b.azimuth_deg},
+                                 {"sigma_deg", b.sigma_deg},
+                                 {"effective_sigma_deg", bf.effective_sigma_deg},
+                                 {"predicted_deg", bf.predicted_azimuth_deg},
+                                 {"residual_deg", bf.residual_deg},
+                                 {"normalized_residual", bf.normalized_residual},
+                                 {"range_m", bf.range_m}});
+      }
+    }
+    doc["fixes"].push_back(j);
+  }
+  doc["caution"] = safety_note();
+  return doc.dump(2) + "\n";
+}
+
+}  // namespace lobfix
