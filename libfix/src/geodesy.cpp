@@ -52,6 +52,16 @@ GeodesicLine12 geodesic_inverse(const LatLon& p1, const LatLon& p2) {
   return g;
 }
 
+GeodesicLine12 geodesic_inverse_azimuths(const LatLon& p1, const LatLon& p2) {
+  GeodesicLine12 g;
+  double unused = 0.0;
+  using GeographicLib::Geodesic;
+  wgs84().GenInverse(p1.lat_deg, p1.lon_deg, p2.lat_deg, p2.lon_deg,
+                     Geodesic::AZIMUTH | Geodesic::REDUCEDLENGTH, unused, g.azi1_deg, g.azi2_deg,
+                     g.m12_m, unused, unused, unused);
+  return g;
+}
+
 GeodesicEnd geodesic_direct(const LatLon& p1, double azi1_deg, double s12_m, bool unroll) {
   GeodesicEnd e;
   double t = 0.0;

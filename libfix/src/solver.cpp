@@ -26,6 +26,7 @@
 #include <mutex>
 #include <random>
 #include <sstream>
+#include <thread>
 #include <utility>
 
 #include "detail/ray_crossing.hpp"
@@ -43,6 +44,31 @@ std::string km_text(double metres) {
   out.precision(metres < 10000.0 ? 3 : 5);
   out << metres / 1000.0 << " km";
   return out.str();
+}
+
+// Runs fn(begin, end) over [0, n) split into contiguous ranges, one per thread. Each index
+// is handled by exactly one call, so results written per index do not depend on the count.
+template <typename Fn>
+void parallel_ranges(std::size_t n, int threads, Fn&& fn) {
+  constexpr std::size_t kMinPerThread = 1000;
+  std::size_t k = threads > 0 ? static_cast<std::size_t>(threads)
+                              : std::max(1U, std::thread::hardware_concurrency());
+  k = std::min(k, std::max<std::size_t>(1, n / kMinPerThread));
+  if (k <= 1) {
+    fn(std::size_t{0}, n);
+    return;
+  }
+  std::vector<std::thread> pool;
+  pool.reserve(k - 1);
+  const std::size_t chunk = (n + k - 1) / k;
+  for (std::size_t t = 1; t < k; ++t) {
+    const std::size_t begin = std::min(n, t * chunk);
+    const std::size_t end = std::min(n, begin + chunk);
+    pool.emplace_back([&fn, begin, end] { fn(begin, end); });
+  }
+  fn(std::size_t{0}, std::min(n, chunk));
+  for (std::thread& th : pool)
+    th.join();
 }
 
 // Partial derivatives of the east/north displacement of p = local_to_geo(c, x, y) with
@@ -74,8 +100,8 @@ FrameJacobian frame_jacobian(double x_m, double y_m, const LocalPoint& p) {
 class BearingsCost final : public ceres::CostFunction {
  public:
   BearingsCost(const std::vector<Bearing>& bearings, const std::vector<double>& sigma_rad,
-               const LatLon& centre)
-      : bearings_(bearings), sigma_rad_(sigma_rad), centre_(centre) {
+               const LatLon& centre, int threads)
+      : bearings_(bearings), sigma_rad_(sigma_rad), centre_(centre), threads_(threads) {
     set_num_residuals(static_cast<int>(bearings.size()));
     mutable_parameter_block_sizes()->push_back(2);
   }
@@ -86,31 +112,41 @@ class BearingsCost final : public ceres::CostFunction {
     const double y = parameters[0][1];
     const LocalPoint p = local_to_geo(centre_, x, y);
     const FrameJacobian fj = frame_jacobian(x, y, p);
-    for (std::size_t i = 0; i < bearings_.size(); ++i) {
-      const Bearing& b = bearings_[i];
-      const GeodesicLine12 g = geodesic_inverse({b.lat_deg, b.lon_deg}, p.point);
-      // Beyond a conjugate point the azimuth is not a smooth function of p: reject the step.
-      if (!(g.m12_m > 0.0))
-        return false;
-      const double inv_sigma = 1.0 / sigma_rad_[i];
-      residuals[i] = angle_diff_deg(b.azimuth_deg, g.azi1_deg) * kDegToRad * inv_sigma;
-      if (jacobians != nullptr && jacobians[0] != nullptr) {
-        const double ca2 = std::cos(g.azi2_deg * kDegToRad);
-        const double sa2 = std::sin(g.azi2_deg * kDegToRad);
-        const double dazi_dE = ca2 / g.m12_m;
-        const double dazi_dN = -sa2 / g.m12_m;
-        // residual = (theta - azi1) / sigma, so d residual = -d azi1 / sigma.
-        jacobians[0][2 * i] = -(dazi_dE * fj.dE_dx + dazi_dN * fj.dN_dx) * inv_sigma;
-        jacobians[0][2 * i + 1] = -(dazi_dE * fj.dE_dy + dazi_dN * fj.dN_dy) * inv_sigma;
+    double* jac = jacobians != nullptr ? jacobians[0] : nullptr;
+    bool ok = true;
+    std::mutex failed_mutex;  // each range writes only its own residuals and Jacobian rows
+    parallel_ranges(bearings_.size(), threads_, [&](std::size_t begin, std::size_t end) {
+      for (std::size_t i = begin; i < end; ++i) {
+        const Bearing& b = bearings_[i];
+        const GeodesicLine12 g = geodesic_inverse_azimuths({b.lat_deg, b.lon_deg}, p.point);
+        // The derivative below holds for a signed m12 (negative beyond a conjugate point);
+        // only m12 = 0, a conjugate point itself, leaves the azimuth non-differentiable.
+        if (!(std::fabs(g.m12_m) > 0.0)) {
+          const std::lock_guard<std::mutex> lock(failed_mutex);
+          ok = false;
+          return;
+        }
+        const double inv_sigma = 1.0 / sigma_rad_[i];
+        residuals[i] = angle_diff_deg(b.azimuth_deg, g.azi1_deg) * kDegToRad * inv_sigma;
+        if (jac != nullptr) {
+          const double ca2 = std::cos(g.azi2_deg * kDegToRad);
+          const double sa2 = std::sin(g.azi2_deg * kDegToRad);
+          const double dazi_dE = ca2 / g.m12_m;
+          const double dazi_dN = -sa2 / g.m12_m;
+          // residual = (theta - azi1) / sigma, so d residual = -d azi1 / sigma.
+          jac[2 * i] = -(dazi_dE * fj.dE_dx + dazi_dN * fj.dN_dx) * inv_sigma;
+          jac[2 * i + 1] = -(dazi_dE * fj.dE_dy + dazi_dN * fj.dN_dy) * inv_sigma;
+        }
       }
-    }
-    return true;
+    });
+    return ok;
   }
 
  private:
   const std::vector<Bearing>& bearings_;
   const std::vector<double>& sigma_rad_;
   LatLon centre_;
+  int threads_;
 };
 
 // Ceres reports through glog on stderr; the library never prints, and its outcomes reach
@@ -174,8 +210,8 @@ std::string SolveOptions::validate() const {
     return "at least one iteration is needed";
   if (max_start_pairs < 1)
     return "at least one start pair is needed";
-  if (num_threads < 1)
-    return "at least one thread is needed";
+  if (num_threads < 0)
+    return "the thread count must be >= 0 (0: one per hardware thread)";
   return {};
 }
 
@@ -270,6 +306,85 @@ std::optional<LatLon> start_point(const std::vector<Bearing>& bearings,
   return local_to_geo(ref, median(xs), median(ys)).point;
 }
 
+namespace {
+
+Fix solve_from(const std::vector<Bearing>& bearings, const LatLon& start,
+               const SolveOptions& options);
+Fix solve_ambiguous(const std::vector<Bearing>& bearings, const LatLon& start,
+                    const SolveOptions& options);
+
+// A start for bearings with mirror candidates: every candidate is a ray; the crossing of two
+// rays of different bearings that the most bearings agree with (one of their candidates
+// within 3 sigma) wins, ties going to the smaller sum of squared normalised residuals
+// (each capped at 9). A consensus search in the manner of RANSAC (Fischler and Bolles 1981),
+// over all pairs or a seeded sample.
+std::optional<LatLon> consensus_start(const std::vector<Bearing>& bearings,
+                                      const SolveOptions& options) {
+  struct Ray {
+    std::size_t bearing;
+    double azimuth_deg;
+  };
+  std::vector<Ray> rays;
+  for (std::size_t i = 0; i < bearings.size(); ++i) {
+    rays.push_back({i, bearings[i].azimuth_deg});
+    if (bearings[i].alt_azimuth_deg)
+      rays.push_back({i, *bearings[i].alt_azimuth_deg});
+  }
+  std::vector<std::pair<std::size_t, std::size_t>> pairs;
+  const std::size_t m = rays.size();
+  // Scoring costs one geodesic per bearing per crossing: fewer crossings for many bearings.
+  const std::size_t budget = std::max<std::size_t>(
+      20, std::min<std::size_t>(static_cast<std::size_t>(options.max_start_pairs),
+                                200000 / std::max<std::size_t>(1, bearings.size())));
+  if (m * (m - 1) / 2 <= budget) {
+    for (std::size_t a = 0; a < m; ++a)
+      for (std::size_t b = a + 1; b < m; ++b)
+        if (rays[a].bearing != rays[b].bearing)
+          pairs.emplace_back(a, b);
+  } else {
+    std::mt19937_64 rng(options.seed);
+    std::uniform_int_distribution<std::size_t> pick(0, m - 1);
+    for (std::size_t k = 0; k < 4 * budget && pairs.size() < budget; ++k) {
+      const std::size_t a = pick(rng);
+      const std::size_t b = pick(rng);
+      if (rays[a].bearing != rays[b].bearing)
+        pairs.emplace_back(a, b);
+    }
+  }
+  std::optional<LatLon> best;
+  int best_votes = -1;
+  double best_cost = 0.0;
+  for (const auto& [a, b] : pairs) {
+    const Bearing& ba = bearings[rays[a].bearing];
+    const Bearing& bb = bearings[rays[b].bearing];
+    const auto c =
+        detail::cross_rays({ba.lat_deg, ba.lon_deg}, rays[a].azimuth_deg, {bb.lat_deg, bb.lon_deg},
+                           rays[b].azimuth_deg, options.max_range_m);
+    if (!c)
+      continue;
+    int votes = 0;
+    double cost = 0.0;
+    for (const Bearing& x : bearings) {
+      const GeodesicLine12 g = geodesic_inverse({x.lat_deg, x.lon_deg}, c->point);
+      double z = std::fabs(angle_diff_deg(x.azimuth_deg, g.azi1_deg)) / x.sigma_deg;
+      if (x.alt_azimuth_deg) {
+        z = std::min(z, std::fabs(angle_diff_deg(*x.alt_azimuth_deg, g.azi1_deg)) /
+                            x.alt_sigma_deg.value_or(x.sigma_deg));
+      }
+      votes += z <= 3.0 ? 1 : 0;
+      cost += std::min(z * z, 9.0);
+    }
+    if (votes > best_votes || (votes == best_votes && cost < best_cost)) {
+      best = c->point;
+      best_votes = votes;
+      best_cost = cost;
+    }
+  }
+  return best;
+}
+
+}  // namespace
+
 Fix solve_fix(const std::vector<Bearing>& bearings, const SolveOptions& options) {
   if (const std::string why = options.validate(); !why.empty()) {
     throw InputError({"", 0, 0, "", why});
@@ -283,17 +398,25 @@ Fix solve_fix(const std::vector<Bearing>& bearings, const SolveOptions& options)
   }
   {
     const LatLon first{bearings[0].lat_deg, bearings[0].lon_deg};
-    double farthest = 0.0;
-    for (const Bearing& b : bearings)
-      farthest = std::max(farthest, geodesic_inverse(first, {b.lat_deg, b.lon_deg}).s12_m);
-    if (farthest < options.same_spot_m) {
+    bool one_spot = true;
+    for (std::size_t i = 1; i < n && one_spot; ++i) {
+      const Bearing& b = bearings[i];
+      if (b.lat_deg == first.lat_deg && b.lon_deg == first.lon_deg)
+        continue;
+      one_spot = geodesic_inverse(first, {b.lat_deg, b.lon_deg}).s12_m < options.same_spot_m;
+    }
+    if (one_spot) {
       return failed(FixStatus::single_spot,
                     "all " + std::to_string(n) +
                         " bearings were taken from one spot: bearings from one place give a "
                         "direction, not a fix; take bearings from at least two places");
     }
   }
-  const std::optional<LatLon> start = start_point(bearings, options);
+  const bool any_ambiguous = std::any_of(bearings.begin(), bearings.end(), [](const Bearing& b) {
+    return b.alt_azimuth_deg.has_value();
+  });
+  const std::optional<LatLon> start =
+      any_ambiguous ? consensus_start(bearings, options) : start_point(bearings, options);
   if (!start) {
     return failed(FixStatus::no_crossing,
                   "no two rays cross ahead of their stations within " +
@@ -301,47 +424,141 @@ Fix solve_fix(const std::vector<Bearing>& bearings, const SolveOptions& options)
                       ": the bearings are parallel or diverge; take a bearing from a place "
                       "at a wider angle to the others");
   }
+  return any_ambiguous ? solve_ambiguous(bearings, *start, options)
+                       : solve_from(bearings, *start, options);
+}
 
-  LatLon centre = *start;
+namespace {
+
+// Everything the fix needs at one point: the per-bearing fits, the Fisher information
+// J^T J of the whitened residuals with respect to east/north at the point, and J^T r, whose
+// solve is the Gauss-Newton step from the point.
+struct PointFit {
+  std::vector<BearingFit> fits;
+  Eigen::Matrix2d information = Eigen::Matrix2d::Zero();
+  Eigen::Vector2d jtr = Eigen::Vector2d::Zero();
+  double chi2 = 0.0;
+  std::size_t nearest = 0;
+  std::size_t farthest = 0;
+};
+
+PointFit fit_at(const std::vector<Bearing>& bearings, const LatLon& p, int threads) {
+  const std::size_t n = bearings.size();
+  PointFit out;
+  out.fits.resize(n);
+  std::vector<Eigen::Vector2d> rows(n, Eigen::Vector2d::Zero());
+  parallel_ranges(n, threads, [&](std::size_t begin, std::size_t end) {
+    for (std::size_t i = begin; i < end; ++i) {
+      const Bearing& b = bearings[i];
+      const GeodesicLine12 g = geodesic_inverse({b.lat_deg, b.lon_deg}, p);
+      BearingFit& bf = out.fits[i];
+      bf.index = i;
+      bf.predicted_azimuth_deg = wrap_deg360(g.azi1_deg);
+      bf.residual_deg = angle_diff_deg(b.azimuth_deg, g.azi1_deg);
+      bf.effective_sigma_deg = effective_sigma_deg(b, g);
+      bf.normalized_residual = bf.residual_deg / bf.effective_sigma_deg;
+      bf.range_m = g.s12_m;
+      if (g.m12_m != 0.0) {
+        // Whitened gradient of azi1 with respect to (E, N) at p (Karney 2013).
+        const double inv = 1.0 / (bf.effective_sigma_deg * kDegToRad * g.m12_m);
+        rows[i] = {std::cos(g.azi2_deg * kDegToRad) * inv, -std::sin(g.azi2_deg * kDegToRad) * inv};
+      }
+    }
+  });
+  // Sums in input order, whatever the thread count.
+  for (std::size_t i = 0; i < n; ++i) {
+    const BearingFit& bf = out.fits[i];
+    out.chi2 += bf.normalized_residual * bf.normalized_residual;
+    out.information += rows[i] * rows[i].transpose();
+    out.jtr += rows[i] * bf.normalized_residual;
+    if (bf.range_m < out.fits[out.nearest].range_m)
+      out.nearest = i;
+    if (bf.range_m > out.fits[out.farthest].range_m)
+      out.farthest = i;
+  }
+  return out;
+}
+
+// One Ceres solve in the frame centred at `centre`; returns the new centre, or a message.
+std::optional<LatLon> ceres_step(const std::vector<Bearing>& bearings,
+                                 const std::vector<double>& sigma_rad, const LatLon& centre,
+                                 const SolveOptions& options, int* iterations,
+                                 std::string* message) {
+  double xy[2] = {0.0, 0.0};
+  ceres::Problem::Options problem_options;
+  ceres::Problem problem(problem_options);
+  problem.AddResidualBlock(new BearingsCost(bearings, sigma_rad, centre, options.num_threads),
+                           nullptr, xy);
+  ceres::Solver::Options solver_options;
+  solver_options.linear_solver_type = ceres::DENSE_QR;
+  solver_options.trust_region_strategy_type = ceres::LEVENBERG_MARQUARDT;
+  solver_options.max_num_iterations = 100;
+  // Ceres brings the estimate into the quadratic region; Gauss-Newton polishing at the
+  // re-centred point (solve_from) finishes it, so Ceres need not chase the last digits.
+  solver_options.function_tolerance = 1e-10;
+  solver_options.gradient_tolerance = 1e-12;
+  solver_options.parameter_tolerance = 1e-8;
+  solver_options.num_threads = 1;  // the cost function spreads its own work
+  solver_options.logging_type = ceres::SILENT;
+  solver_options.minimizer_progress_to_stdout = false;
+  ceres::Solver::Summary summary;
+  ceres::Solve(solver_options, &problem, &summary);
+  *iterations += static_cast<int>(summary.iterations.size());
+  // At the optimum Ceres can stop on rounding ("invalid steps") with the best point kept:
+  // that point is as good as any, and the caller checks convergence.
+  const bool usable = summary.IsSolutionUsable() || (summary.termination_type == ceres::FAILURE &&
+                                                     std::isfinite(summary.final_cost) &&
+                                                     summary.final_cost <= summary.initial_cost);
+  if (!usable) {
+    *message = "the estimator failed: " + summary.message;
+    return std::nullopt;
+  }
+  return local_to_geo(centre, xy[0], xy[1]).point;
+}
+
+Fix solve_from(const std::vector<Bearing>& bearings, const LatLon& start,
+               const SolveOptions& options) {
+  const std::size_t n = bearings.size();
+  // Effective sigmas depend on the range only through the station-position term.
+  const bool range_dependent = std::any_of(bearings.begin(), bearings.end(),
+                                           [](const Bearing& b) { return b.pos_sigma_m > 0.0; });
   std::vector<double> sigma_rad(n);
+  for (std::size_t i = 0; i < n; ++i) {
+    const Bearing& b = bearings[i];
+    sigma_rad[i] =
+        (range_dependent ? effective_sigma_deg(b, geodesic_inverse({b.lat_deg, b.lon_deg}, start))
+                         : b.sigma_deg) *
+        kDegToRad;
+  }
   int iterations = 0;
+  std::string message;
+  std::optional<LatLon> centre =
+      ceres_step(bearings, sigma_rad, start, options, &iterations, &message);
+  if (!centre)
+    return failed(FixStatus::not_converged, message);
+
+  // Re-centre and check: the Gauss-Newton step at the new centre (in its own east/north
+  // frame) must be below convergence_m. Small steps are taken directly (quadratic
+  // convergence, one pass over the bearings each); a large one goes back to Ceres.
+  PointFit fit;
   bool converged = false;
-  for (int outer = 0; outer < options.max_iterations && !converged; ++outer) {
-    for (std::size_t i = 0; i < n; ++i) {
-      const GeodesicLine12 g = geodesic_inverse({bearings[i].lat_deg, bearings[i].lon_deg}, centre);
-      sigma_rad[i] = effective_sigma_deg(bearings[i], g) * kDegToRad;
+  for (int k = 0; k < options.max_iterations && !converged; ++k) {
+    fit = fit_at(bearings, *centre, options.num_threads);
+    const Eigen::Vector2d step = fit.information.ldlt().solve(fit.jtr);
+    const double step_m = step.allFinite() ? step.norm() : 0.0;
+    converged = step_m < options.convergence_m;
+    if (converged)
+      break;
+    ++iterations;
+    if (step_m < 10.0) {
+      centre = local_to_geo(*centre, step(0), step(1)).point;
+    } else {
+      for (std::size_t i = 0; i < n; ++i)
+        sigma_rad[i] = fit.fits[i].effective_sigma_deg * kDegToRad;
+      centre = ceres_step(bearings, sigma_rad, *centre, options, &iterations, &message);
+      if (!centre)
+        return failed(FixStatus::not_converged, message);
     }
-    double xy[2] = {0.0, 0.0};
-    ceres::Problem::Options problem_options;
-    ceres::Problem problem(problem_options);
-    problem.AddResidualBlock(new BearingsCost(bearings, sigma_rad, centre), nullptr, xy);
-    ceres::Solver::Options solver_options;
-    solver_options.linear_solver_type = ceres::DENSE_QR;
-    solver_options.trust_region_strategy_type = ceres::LEVENBERG_MARQUARDT;
-    solver_options.max_num_iterations = 100;
-    // The outer loop decides convergence (a re-centring step below convergence_m); Ceres
-    // only needs to get close. Tolerances much tighter than this make Ceres chase rounding
-    // at the optimum and end in "invalid step" failures.
-    solver_options.function_tolerance = 1e-12;
-    solver_options.gradient_tolerance = 1e-12;
-    solver_options.parameter_tolerance = 1e-12;
-    solver_options.num_threads = options.num_threads;
-    solver_options.logging_type = ceres::SILENT;
-    solver_options.minimizer_progress_to_stdout = false;
-    ceres::Solver::Summary summary;
-    ceres::Solve(solver_options, &problem, &summary);
-    iterations += static_cast<int>(summary.iterations.size());
-    // At the optimum Ceres can stop on rounding ("invalid steps") with the best point kept:
-    // that point is as good as any, and the outer loop checks the step.
-    const bool usable = summary.IsSolutionUsable() || (summary.termination_type == ceres::FAILURE &&
-                                                       std::isfinite(summary.final_cost) &&
-                                                       summary.final_cost <= summary.initial_cost);
-    if (!usable) {
-      return failed(FixStatus::not_converged, "the estimator failed: " + summary.message);
-    }
-    const double step = std::hypot(xy[0], xy[1]);
-    centre = local_to_geo(centre, xy[0], xy[1]).point;
-    converged = step < options.convergence_m;
   }
   if (!converged) {
     return failed(FixStatus::not_converged, "the estimator did not settle within " +
@@ -350,59 +567,27 @@ Fix solve_fix(const std::vector<Bearing>& bearings, const SolveOptions& options)
   }
 
   Fix fix;
-  fix.position = centre;
+  fix.position = *centre;
   fix.iterations = iterations;
-  fix.start_distance_m = geodesic_inverse(*start, centre).s12_m;
-  fix.bearings.reserve(n);
-  Eigen::Matrix2d information = Eigen::Matrix2d::Zero();
-  double nearest = std::numeric_limits<double>::infinity();
-  double farthest = 0.0;
-  std::string nearest_station;
-  std::string farthest_station;
-  for (std::size_t i = 0; i < n; ++i) {
-    const Bearing& b = bearings[i];
-    const GeodesicLine12 g = geodesic_inverse({b.lat_deg, b.lon_deg}, centre);
-    BearingFit bf;
-    bf.index = i;
-    bf.predicted_azimuth_deg = wrap_deg360(g.azi1_deg);
-    bf.residual_deg = angle_diff_deg(b.azimuth_deg, g.azi1_deg);
-    bf.effective_sigma_deg = effective_sigma_deg(b, g);
-    bf.normalized_residual = bf.residual_deg / bf.effective_sigma_deg;
-    bf.range_m = g.s12_m;
-    fix.chi2 += bf.normalized_residual * bf.normalized_residual;
-    if (g.s12_m < nearest) {
-      nearest = g.s12_m;
-      nearest_station = b.station;
-    }
-    if (g.s12_m > farthest) {
-      farthest = g.s12_m;
-      farthest_station = b.station;
-    }
-    if (g.m12_m > 0.0) {
-      // Whitened gradient of azi1 with respect to (E, N) at the fix (frame = identity).
-      const double inv = 1.0 / (bf.effective_sigma_deg * kDegToRad * g.m12_m);
-      const Eigen::Vector2d row(std::cos(g.azi2_deg * kDegToRad) * inv,
-                                -std::sin(g.azi2_deg * kDegToRad) * inv);
-      information += row * row.transpose();
-    }
-    fix.bearings.push_back(bf);
-  }
+  fix.start_distance_m = geodesic_inverse(start, *centre).s12_m;
+  fix.chi2 = fit.chi2;
   fix.dof = static_cast<int>(n) - 2;
-
-  if (nearest < options.at_station_m) {
+  const BearingFit& nearest = fit.fits[fit.nearest];
+  const BearingFit& farthest = fit.fits[fit.farthest];
+  if (nearest.range_m < options.at_station_m) {
     return failed(FixStatus::at_station,
-                  "the solution falls on station '" + nearest_station +
+                  "the solution falls on station '" + bearings[nearest.index].station +
                       "', where its own bearing is undefined; leave that station's bearings "
                       "out or take bearings from elsewhere");
   }
-  if (farthest > options.max_range_m) {
+  if (farthest.range_m > options.max_range_m) {
     return failed(FixStatus::out_of_range,
-                  "the only solution lies " + km_text(farthest) + " from station '" +
-                      farthest_station + "', beyond the maximum range of " +
+                  "the only solution lies " + km_text(farthest.range_m) + " from station '" +
+                      bearings[farthest.index].station + "', beyond the maximum range of " +
                       km_text(options.max_range_m) + "; raise it only for long-range HF");
   }
   // Near-parallel rays give an honestly huge ellipse; exactly collinear rays give none.
-  const Eigen::SelfAdjointEigenSolver<Eigen::Matrix2d> eig(information);
+  const Eigen::SelfAdjointEigenSolver<Eigen::Matrix2d> eig(fit.information);
   const double lmax = eig.eigenvalues()(1);
   const double lmin = eig.eigenvalues()(0);
   if (!(lmax > 0.0) || !(lmin > lmax * 1e-14)) {
@@ -410,11 +595,68 @@ Fix solve_fix(const std::vector<Bearing>& bearings, const SolveOptions& options)
                   "the rays are collinear: they cannot locate the transmitter along their "
                   "common line; take a bearing from a place off that line");
   }
-  const Eigen::Matrix2d cov = information.inverse();
+  const Eigen::Matrix2d cov = fit.information.inverse();
   fix.covariance_en_m2 = {{{cov(0, 0), cov(0, 1)}, {cov(1, 0), cov(1, 1)}}};
+  fix.bearings = std::move(fit.fits);
   fix.status = FixStatus::ok;
   return fix;
 }
+
+// Mirror-image candidates (two-antenna arrays): at the current estimate each ambiguous
+// bearing takes the candidate with the smaller normalised residual; the fix is solved with
+// those choices and the choices are made again at the new fix, until they settle. The start
+// is a consensus crossing (consensus_start), so the first choices are already right for all
+// but a few.
+Fix solve_ambiguous(const std::vector<Bearing>& bearings, const LatLon& start,
+                    const SolveOptions& options) {
+  const std::size_t n = bearings.size();
+  std::vector<bool> use_alt(n, false);
+  const auto choose = [&](const LatLon& at) {
+    bool changed = false;
+    for (std::size_t i = 0; i < n; ++i) {
+      const Bearing& b = bearings[i];
+      if (!b.alt_azimuth_deg)
+        continue;
+      const GeodesicLine12 g = geodesic_inverse({b.lat_deg, b.lon_deg}, at);
+      const double z0 = angle_diff_deg(b.azimuth_deg, g.azi1_deg) / b.sigma_deg;
+      const double z1 =
+          angle_diff_deg(*b.alt_azimuth_deg, g.azi1_deg) / b.alt_sigma_deg.value_or(b.sigma_deg);
+      const bool alt = std::fabs(z1) < std::fabs(z0);
+      changed = changed || alt != use_alt[i];
+      use_alt[i] = alt;
+    }
+    return changed;
+  };
+  choose(start);
+  LatLon at = start;
+  Fix fix;
+  for (int round = 0; round < 10; ++round) {
+    std::vector<Bearing> chosen = bearings;
+    for (std::size_t i = 0; i < n; ++i) {
+      if (use_alt[i]) {
+        chosen[i].azimuth_deg = *bearings[i].alt_azimuth_deg;
+        chosen[i].sigma_deg = bearings[i].alt_sigma_deg.value_or(bearings[i].sigma_deg);
+      }
+    }
+    fix = solve_from(chosen, at, options);
+    if (!fix.ok())
+      return fix;
+    at = fix.position;
+    if (!choose(at))
+      break;
+  }
+  for (BearingFit& bf : fix.bearings) {
+    const Bearing& b = bearings[bf.index];
+    if (!b.alt_azimuth_deg)
+      continue;
+    bf.ambiguous = true;
+    bf.used_alt = use_alt[bf.index];
+    bf.rejected_azimuth_deg = use_alt[bf.index] ? b.azimuth_deg : *b.alt_azimuth_deg;
+  }
+  return fix;
+}
+
+}  // namespace
 
 std::vector<Fix> solve_by_signal(const std::vector<Bearing>& bearings,
                                  const SolveOptions& options) {

@@ -352,3 +352,83 @@ TEST_CASE("the start point is deterministic for a given seed") {
   CHECK(s1->lat_deg == s2->lat_deg);
   CHECK(s1->lon_deg == s2->lon_deg);
 }
+
+TEST_CASE("mirror-image candidates: the right one is picked and the fix is unchanged") {
+  // Seeded scenario (issue requirement): every bearing comes as a pair mirrored about a
+  // random array axis, as a two-element interferometer gives (METHODS.md: bearing = axis +-
+  // psi). The right candidate must be picked for at least 99% of bearings, and the fix must
+  // equal the fix from the unambiguous bearings.
+  std::mt19937_64 rng(4242);
+  std::uniform_real_distribution<double> uni(0.0, 360.0);
+  std::uniform_real_distribution<double> range(3000.0, 9000.0);
+  std::normal_distribution<double> noise(0.0, 2.0);
+  const LatLon t{52.2, -1.7};
+  int right = 0;
+  int total = 0;
+  for (int trial = 0; trial < 200; ++trial) {
+    std::vector<Bearing> plain;
+    for (int i = 0; i < 8; ++i) {
+      plain.push_back(exact_bearing("S" + std::to_string(i), around(t, uni(rng), range(rng)), t,
+                                    2.0, noise(rng)));
+    }
+    std::vector<Bearing> pairs = plain;
+    std::vector<bool> truth_is_alt;
+    for (Bearing& b : pairs) {
+      // Keep the axis at least 15 deg from the bearing, where real arrays are usable.
+      double axis = 0.0;
+      do {
+        axis = uni(rng);
+      } while (std::fabs(std::sin((b.azimuth_deg - axis) * M_PI / 180.0)) < std::sin(0.26));
+      const double mirror = wrap_deg360(2.0 * axis - b.azimuth_deg);
+      const bool swap = uni(rng) < 180.0;  // the right one comes first or second at random
+      b.alt_azimuth_deg = swap ? b.azimuth_deg : mirror;
+      b.azimuth_deg = swap ? mirror : b.azimuth_deg;
+      b.alt_sigma_deg = b.sigma_deg;
+      truth_is_alt.push_back(swap);
+    }
+    const Fix reference = solve_fix(plain);
+    const Fix f = solve_fix(pairs);
+    REQUIRE(reference.ok());
+    REQUIRE(f.ok());
+    for (const BearingFit& bf : f.bearings) {
+      CHECK(bf.ambiguous);
+      right += bf.used_alt == truth_is_alt[bf.index] ? 1 : 0;
+      ++total;
+    }
+    bool all_right = true;
+    for (const BearingFit& bf : f.bearings)
+      all_right = all_right && bf.used_alt == truth_is_alt[bf.index];
+    if (all_right)
+      CHECK(miss_m(f, reference.position) < 1e-3);
+  }
+  const double rate = static_cast<double>(right) / total;
+  MESSAGE("right candidate picked for " << right << " of " << total << " bearings");
+  CHECK(rate >= 0.99);
+}
+
+TEST_CASE("the result does not depend on the thread count, to the last bit") {
+  // Convention of docs/architecture.md: same input, same output, byte for byte.
+  const LatLon t{-3.5, 36.8};
+  std::mt19937_64 rng(99);
+  std::uniform_real_distribution<double> az(0.0, 360.0);
+  std::uniform_real_distribution<double> rg(2000.0, 20000.0);
+  std::normal_distribution<double> noise(0.0, 2.0);
+  std::vector<Bearing> b;
+  for (int i = 0; i < 5000; ++i) {
+    b.push_back(exact_bearing("S", around(t, az(rng), rg(rng)), t, 2.0, noise(rng)));
+    b.back().pos_sigma_m = 5.0;
+  }
+  SolveOptions one;
+  one.num_threads = 1;
+  SolveOptions two;
+  two.num_threads = 2;
+  const Fix f1 = solve_fix(b, one);
+  const Fix f2 = solve_fix(b, two);
+  REQUIRE(f1.ok());
+  REQUIRE(f2.ok());
+  CHECK(f1.position.lat_deg == f2.position.lat_deg);
+  CHECK(f1.position.lon_deg == f2.position.lon_deg);
+  CHECK(f1.chi2 == f2.chi2);
+  CHECK(f1.covariance_en_m2[0][0] == f2.covariance_en_m2[0][0]);
+  CHECK(miss_m(f1, t) < 50.0);
+}

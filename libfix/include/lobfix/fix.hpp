@@ -31,6 +31,12 @@ struct BearingFit {
   double effective_sigma_deg = 0;    ///< sqrt(sigma^2 + position term^2), see docs/method.md
   double normalized_residual = 0;    ///< residual / effective sigma
   double range_m = 0;                ///< geodesic distance station -> fix
+  /// The bearing came with a mirror-image candidate (Bearing::alt_azimuth_deg).
+  bool ambiguous = false;
+  /// The solver used the alternative candidate rather than Bearing::azimuth_deg.
+  bool used_alt = false;
+  /// The candidate not used (true azimuth), when ambiguous.
+  double rejected_azimuth_deg = 0;
 };
 
 /// A position estimate with its covariance, or a status saying why there is none.

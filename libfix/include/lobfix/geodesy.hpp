@@ -32,6 +32,9 @@ struct GeodesicLine12 {
   double M21 = 1.0;
 };
 GeodesicLine12 geodesic_inverse(const LatLon& p1, const LatLon& p2);
+/// The same with only azi1_deg, azi2_deg and m12_m computed (the others are left at their
+/// defaults): what the solver's inner loop needs, at less cost.
+GeodesicLine12 geodesic_inverse_azimuths(const LatLon& p1, const LatLon& p2);
 
 /// The direct problem: the point s12_m along the geodesic leaving p1 at azi1_deg, and the
 /// forward azimuth there. Longitude of the result is in [-180, 180] unless

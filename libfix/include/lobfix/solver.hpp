@@ -28,8 +28,10 @@ struct SolveOptions {
   /// drawn with `seed` (deterministic).
   int max_start_pairs = 400;
   std::uint64_t seed = 1;
-  /// Threads Ceres may use to evaluate residuals.
-  int num_threads = 1;
+  /// Threads used to evaluate the bearings (each bearing's residual is computed on its own
+  /// and sums are taken in a fixed order, so the result does not depend on the count);
+  /// 0 means one per hardware thread. Inputs under 2,000 bearings use one thread.
+  int num_threads = 0;
 
   /// Empty when valid, else the reason.
   std::string validate() const;
