@@ -1,19 +1,46 @@
 #include "solve_command.hpp"
 
+#include <cctype>
 #include <cstdio>
+#include <fstream>
 #include <iostream>
+#include <memory>
 #include <string>
 #include <vector>
 
 #include "exit_codes.hpp"
-#include "lobfix/csv_reader.hpp"
+#include "lobfix/crs.hpp"
 #include "lobfix/error.hpp"
 #include "lobfix/export.hpp"
+#include "lobfix/normalise.hpp"
+#include "lobfix/reader.hpp"
 #include "lobfix/solver.hpp"
 #include "lobfix/summary.hpp"
+#include "lobfix/track.hpp"
 #include "lobfix/uncertainty.hpp"
 
 namespace lobfix_app {
+
+namespace {
+
+// NMEA 0183 logs by name, or by a first line that starts with '$' (GPX is XML).
+bool is_nmea_file(const std::string& path) {
+  const auto dot = path.rfind('.');
+  std::string ext = dot == std::string::npos ? "" : path.substr(dot + 1);
+  for (char& c : ext)
+    c = static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
+  if (ext == "nmea" || ext == "nme" || ext == "log" || ext == "txt")
+    return true;
+  if (ext == "gpx")
+    return false;
+  std::ifstream in(path);
+  char first = 0;
+  while (in.get(first) && std::isspace(static_cast<unsigned char>(first))) {
+  }
+  return first == '$';
+}
+
+}  // namespace
 
 CLI::App* add_solve_command(CLI::App& app, SolveArgs& args) {
   CLI::App* cmd = app.add_subcommand(
@@ -56,7 +83,7 @@ CLI::App* add_solve_command(CLI::App& app, SolveArgs& args) {
 
 int run_solve(const SolveArgs& args) {
   using namespace lobfix;
-  CsvReadOptions read_options;
+  ReadOptions read_options;
   read_options.default_sigma_deg = args.sigma_deg;
   if (args.sigma_deg && !(*args.sigma_deg > 0.0 && *args.sigma_deg <= 90.0)) {
     std::cerr << "lobfix: --sigma-deg must be in (0, 90]\n";
@@ -68,26 +95,74 @@ int run_solve(const SolveArgs& args) {
       return kExitUsage;
     }
   }
-  CsvReadResult read;
+
+  // Read: the bearings, the tracks, the grid's CRS. Problems in rows are collected, then
+  // either fail the run or are skipped with --skip-bad; problems with whole files stop it.
+  ReadResult read;
+  std::vector<Track> tracks;
+  std::vector<Diagnostic> problems;
+  std::vector<Diagnostic> warnings;
+  std::unique_ptr<ProjectedCrs> grid_crs;
   try {
-    read = args.input == "-" ? read_bearings_csv(std::cin, "<stdin>", read_options)
-                             : read_bearings_csv_file(args.input, read_options);
+    read = read_observations_file(args.input, read_options);
+    problems = read.row_errors;
+    warnings = read.warnings;
+    for (const std::string& spec : args.tracks) {
+      const std::size_t eq = spec.find('=');
+      const std::string station = eq == std::string::npos ? "" : spec.substr(0, eq);
+      const std::string file = eq == std::string::npos ? spec : spec.substr(eq + 1);
+      if (is_nmea_file(file)) {
+        if (station.empty()) {
+          std::cerr << "lobfix: --track " << spec
+                    << ": an NMEA log does not name its station: write --track STATION=" << file
+                    << "\n";
+          return kExitUsage;
+        }
+        NmeaReadResult nmea = read_nmea_track(file, station);
+        problems.insert(problems.end(), nmea.errors.begin(), nmea.errors.end());
+        tracks.push_back(std::move(nmea.track));
+      } else {
+        for (Track& t : read_gpx_tracks(file, station))
+          tracks.push_back(std::move(t));
+      }
+    }
+    if (!args.grid_crs.empty())
+      grid_crs = std::make_unique<ProjectedCrs>(args.grid_crs);
   } catch (const InputError& e) {
     std::cerr << e.what() << "\n";
     return kExitInputError;
   }
-  for (const Diagnostic& w : read.warnings)
+
+  // Normalise: every row becomes a true bearing with its sigma budget.
+  NormaliseOptions normalise_options;
+  normalise_options.declination_deg = args.declination_deg;
+  normalise_options.grid_crs = grid_crs.get();
+  normalise_options.track.gps_sigma_m = args.gps_sigma_m;
+  normalise_options.track.max_gap_s = args.track_gap_s;
+  normalise_options.track.time_tolerance_s = args.track_tolerance_s;
+  NormaliseResult normalised;
+  try {
+    normalised = normalise(read.observations, tracks, normalise_options);
+  } catch (const InputError& e) {
+    std::cerr << "lobfix: " << e.diagnostic().reason << "\n";
+    return kExitUsage;
+  }
+  std::vector<Observation>().swap(read.observations);  // the bearings carry all from here
+  problems.insert(problems.end(), normalised.errors.begin(), normalised.errors.end());
+  warnings.insert(warnings.end(), normalised.warnings.begin(), normalised.warnings.end());
+  const std::vector<Bearing>& bearings = normalised.bearings;
+
+  for (const Diagnostic& w : warnings)
     std::cerr << "warning: " << w.to_string() << "\n";
-  if (!read.row_errors.empty()) {
-    for (const Diagnostic& d : read.row_errors) {
+  if (!problems.empty()) {
+    for (const Diagnostic& d : problems) {
       std::cerr << (args.skip_bad ? "skipped: " : "") << d.to_string() << "\n";
     }
     if (!args.skip_bad) {
-      const std::size_t n = read.row_errors.size();
+      const std::size_t n = problems.size();
       std::cerr << "lobfix: " << n << (n == 1 ? " problem" : " problems")
-                << " in the input; nothing was written. Correct the file, or use --skip-bad to "
-                   "leave those "
-                   "rows out.\n";
+                << " in the input; nothing was written. Correct the file, or use --skip-bad "
+                   "to leave those rows out.\n";
       return kExitInputError;
     }
   }
@@ -101,7 +176,7 @@ int run_solve(const SolveArgs& args) {
 
   std::vector<FixResult> results;
   try {
-    for (Fix& fix : solve_by_signal(read.bearings, solve_options)) {
+    for (Fix& fix : solve_by_signal(bearings, solve_options)) {
       FixResult r;
       r.uncertainty = describe_uncertainty(fix, uncertainty_options);
       r.fix = std::move(fix);
@@ -111,7 +186,7 @@ int run_solve(const SolveArgs& args) {
     std::cerr << "lobfix: " << e.diagnostic().reason << "\n";
     return kExitUsage;
   }
-  if (read.bearings.empty()) {
+  if (bearings.empty()) {
     std::cerr << "lobfix: no usable bearings in " << args.input << "\n";
     return kExitNoFix;
   }
@@ -132,10 +207,11 @@ int run_solve(const SolveArgs& args) {
   RunInfo run;
   run.input = args.input;
   run.rows_read = read.rows_read;
+  run.rows_converted = static_cast<int>(bearings.size());
   run.version = LOBFIX_VERSION;
   if (args.skip_bad)
-    run.skipped = read.row_errors;
-  run.warnings = read.warnings;
+    run.skipped = problems;
+  run.warnings = warnings;
 
   // Files only when there is a fix to show; each appears whole or not at all.
   if (any_fixed) {
@@ -143,9 +219,9 @@ int run_solve(const SolveArgs& args) {
     export_options.ray_length_m = args.ray_length_km * 1000.0;
     try {
       if (!args.geojson.empty())
-        write_geojson(args.geojson, read.bearings, results, export_options);
+        write_geojson(args.geojson, bearings, results, export_options);
       if (!args.kml.empty())
-        write_kml(args.kml, read.bearings, results, export_options);
+        write_kml(args.kml, bearings, results, export_options);
     } catch (const OutputError& e) {
       std::cerr << "lobfix: " << e.what() << "\n";
       return kExitOutputError;
@@ -153,9 +229,9 @@ int run_solve(const SolveArgs& args) {
   }
 
   if (args.json) {
-    std::cout << json_summary(run, read.bearings, results);
+    std::cout << json_summary(run, bearings, results);
   } else if (!args.quiet) {
-    std::cout << text_summary(run, read.bearings, results);
+    std::cout << text_summary(run, bearings, results);
   }
   return all_fixed ? kExitOk : kExitNoFix;
 }

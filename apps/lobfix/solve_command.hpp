@@ -21,6 +21,12 @@ struct SolveArgs {
   double ray_length_km = 0.0;
   double alpha = 0.05;
   unsigned long long seed = 1;
+  std::vector<std::string> tracks;  ///< FILE.gpx or STATION=FILE
+  std::optional<double> declination_deg;
+  std::string grid_crs;
+  double gps_sigma_m = 5.0;
+  double track_gap_s = 60.0;
+  double track_tolerance_s = 2.0;
 };
 
 /// Register the subcommand; `args` must outlive the parse.

@@ -390,6 +390,11 @@ MapContent build_content(const std::vector<Bearing>& bearings,
     const auto fit = fit_of.find(i);
     const BearingFit* bf = fit == fit_of.end() ? nullptr : fit->second;
 
+    // With mirror candidates, the ray drawn is the one the solver chose.
+    const bool use_alt = bf != nullptr && bf->used_alt && b.alt_azimuth_deg.has_value();
+    const double azimuth_deg = use_alt ? *b.alt_azimuth_deg : b.azimuth_deg;
+    const double sigma_deg = use_alt && b.alt_sigma_deg ? *b.alt_sigma_deg : b.sigma_deg;
+
     MapFeature f;
     f.group = Group::rays;
     f.fields = {{"kind", std::string("ray")},
@@ -397,14 +402,14 @@ MapContent build_content(const std::vector<Bearing>& bearings,
                 {"station", b.station},
                 {"row", b.source.line},
                 {"time", b.time_text.empty() ? Value() : Value(b.time_text)},
-                {"bearing_deg", real_or_null(b.azimuth_deg)},
-                {"sigma_deg", real_or_null(b.sigma_deg)},
+                {"bearing_deg", real_or_null(azimuth_deg)},
+                {"sigma_deg", real_or_null(sigma_deg)},
                 {"residual_deg", bf ? real_or_null(bf->residual_deg) : Value()},
                 {"normalized_residual", bf ? real_or_null(bf->normalized_residual) : Value()}};
-    f.geometry = line_geometry(ray_path(station, b.azimuth_deg, length_m, max_step_m));
-    f.name = b.station + " " + bearing_text(b.azimuth_deg);
+    f.geometry = line_geometry(ray_path(station, azimuth_deg, length_m, max_step_m));
+    f.name = b.station + " " + bearing_text(azimuth_deg);
     f.description = strf("Line of bearing %s true, %.1f\xC2\xB0 (1 sigma), from station %s",
-                         bearing_text(b.azimuth_deg).c_str(), b.sigma_deg, b.station.c_str());
+                         bearing_text(azimuth_deg).c_str(), sigma_deg, b.station.c_str());
     if (!b.time_text.empty())
       f.description += " at " + b.time_text;
     f.description += strf(" (row %d), signal %s. ", b.source.line, signal_label(b.signal).c_str());

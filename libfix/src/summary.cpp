@@ -2,6 +2,7 @@
 
 #include <fmt/format.h>
 
+#include <algorithm>
 #include <cctype>
 #include <cmath>
 #include <nlohmann/json.hpp>
@@ -79,6 +80,39 @@ std::string fit_words(const Fix& fix, const Uncertainty& u) {
   return fmt::format("consistent with the stated sigmas (p = {:.3g})", u.p_value);
 }
 
+// The true azimuth the solver used (the chosen one of two mirror candidates).
+double used_azimuth_deg(const Bearing& b, const BearingFit& bf) {
+  return bf.used_alt && b.alt_azimuth_deg ? *b.alt_azimuth_deg : b.azimuth_deg;
+}
+
+// How the bearing became true, in a few words for the table.
+std::string derivation_words(const Bearing& b, const BearingFit& bf) {
+  const BearingDerivation& d = b.derivation;
+  std::string out;
+  switch (d.reference) {
+    case BearingReference::true_north:
+      out = "true";
+      break;
+    case BearingReference::magnetic:
+      out = fmt::format("mag {:.1f} {:+.2f} decl", d.measured_deg, d.declination_deg.value_or(0));
+      break;
+    case BearingReference::grid:
+      out = fmt::format("grid {:.1f} {:+.2f} conv", d.measured_deg, d.convergence_deg.value_or(0));
+      break;
+    case BearingReference::relative:
+      out = fmt::format("rel {:.1f} + hdg {:.1f}{}", d.measured_deg, d.heading_deg.value_or(0),
+                        d.heading_source == "track course" ? " (track)" : "");
+      break;
+  }
+  if (d.from_interferometer)
+    out += ", phase";
+  if (bf.ambiguous)
+    out += fmt::format(", mirror {:.1f} rejected", bf.rejected_azimuth_deg);
+  if (d.position_source != "file" && !d.position_source.empty())
+    out += ", pos from track";
+  return out;
+}
+
 std::string ellipse_line(const Ellipse& e) {
   return fmt::format("{:>4.0f}%  {} x {} (semi-axes), major axis {:05.1f} deg", e.probability * 100,
                      distance_text(e.semi_major_m), distance_text(e.semi_minor_m),
@@ -108,8 +142,11 @@ const char* safety_note() {
 std::string text_summary(const RunInfo& run, const std::vector<Bearing>& bearings,
                          const std::vector<FixResult>& results) {
   std::string out;
-  out +=
-      fmt::format("lobfix {}: {} bearings read from {}", run.version, bearings.size(), run.input);
+  std::size_t used = 0;
+  for (const FixResult& r : results)
+    used += r.fix.bearings.size();
+  out += fmt::format("lobfix {}: {} rows read from {}, {} converted to true bearings, {} used",
+                     run.version, run.rows_read, run.input, bearings.size(), used);
   if (!run.skipped.empty()) {
     std::set<int> lines;
     for (const Diagnostic& d : run.skipped)
@@ -155,14 +192,15 @@ std::string text_summary(const RunInfo& run, const std::vector<Bearing>& bearing
       out += fmt::format("CEP        {} (scaled)\n", distance_text(u.scaled_cep_m));
     }
     out += "\n";
-    out += fmt::format("{:>6}  {:<14} {:<24} {:>8} {:>6} {:>9} {:>7} {:>10}\n", "line", "station",
-                       "time", "bearing", "sigma", "residual", "resid/s", "range");
+    out +=
+        fmt::format("{:>6}  {:<14} {:<24} {:>8} {:>6} {:>9} {:>7} {:>10}  {}\n", "line", "station",
+                    "time", "bearing", "sigma", "residual", "resid/s", "range", "derived from");
     for (const BearingFit& bf : f.bearings) {
       const Bearing& b = bearings[bf.index];
-      out +=
-          fmt::format("{:>6}  {:<14} {:<24} {:>8.1f} {:>6.2f} {:>+9.2f} {:>+7.2f} {:>10}\n",
-                      b.source.line, b.station, b.time_text, b.azimuth_deg, bf.effective_sigma_deg,
-                      bf.residual_deg, bf.normalized_residual, distance_text(bf.range_m));
+      out += fmt::format("{:>6}  {:<14} {:<24} {:>8.1f} {:>6.2f} {:>+9.2f} {:>+7.2f} {:>10}  {}\n",
+                         b.source.line, b.station, b.time_text, used_azimuth_deg(b, bf),
+                         bf.effective_sigma_deg, bf.residual_deg, bf.normalized_residual,
+                         distance_text(bf.range_m), derivation_words(b, bf));
     }
   }
   out += "\n";
@@ -175,8 +213,13 @@ std::string json_summary(const RunInfo& run, const std::vector<Bearing>& bearing
                          const std::vector<FixResult>& results) {
   nlohmann::ordered_json doc;
   doc["lobfix"] = run.version;
-  nlohmann::ordered_json input = {
-      {"file", run.input}, {"rows_read", run.rows_read}, {"bearings_used", bearings.size()}};
+  std::size_t used = 0;
+  for (const FixResult& r : results)
+    used += r.fix.bearings.size();
+  nlohmann::ordered_json input = {{"file", run.input},
+                                  {"rows_read", run.rows_read},
+                                  {"rows_converted", bearings.size()},
+                                  {"bearings_used", used}};
   input["skipped"] = nlohmann::ordered_json::array();
   for (const Diagnostic& d : run.skipped)
     input["skipped"].push_back(diagnostic_json(d));
@@ -222,18 +265,50 @@ std::string json_summary(const RunInfo& run, const std::vector<Bearing>& bearing
       j["bearings"] = nlohmann::ordered_json::array();
       for (const BearingFit& bf : f.bearings) {
         const Bearing& b = bearings[bf.index];
-        j["bearings"].push_back({{"row", b.source.line},
-                                 {"station", b.station},
-                                 {"time", b.time_text},
-                                 {"lat", b.lat_deg},
-                                 {"lon", b.lon_deg},
-                                 {"bearing_deg", b.azimuth_deg},
-                                 {"sigma_deg", b.sigma_deg},
-                                 {"effective_sigma_deg", bf.effective_sigma_deg},
-                                 {"predicted_deg", bf.predicted_azimuth_deg},
-                                 {"residual_deg", bf.residual_deg},
-                                 {"normalized_residual", bf.normalized_residual},
-                                 {"range_m", bf.range_m}});
+        const BearingDerivation& d = b.derivation;
+        const double used_sigma = bf.used_alt && b.alt_sigma_deg ? *b.alt_sigma_deg : b.sigma_deg;
+        nlohmann::ordered_json jb = {
+            {"row", b.source.line},
+            {"station", b.station},
+            {"time", b.time_text},
+            {"lat", b.lat_deg},
+            {"lon", b.lon_deg},
+            {"position_source",
+             d.position_source.empty() ? std::string("file") : d.position_source},
+            {"reference", to_string(d.reference)},
+            {"measured_deg", d.measured_deg},
+            {"true_bearing_deg", used_azimuth_deg(b, bf)}};
+        if (d.declination_deg) {
+          jb["declination_deg"] = *d.declination_deg;
+          jb["declination_source"] = d.declination_source;
+        }
+        if (d.convergence_deg) {
+          jb["convergence_deg"] = *d.convergence_deg;
+          jb["convergence_source"] = d.convergence_source;
+        }
+        if (d.heading_deg) {
+          jb["heading_deg"] = *d.heading_deg;
+          jb["heading_source"] = d.heading_source;
+        }
+        if (bf.ambiguous) {
+          jb["ambiguous"] = true;
+          jb["rejected_bearing_deg"] = bf.rejected_azimuth_deg;
+        }
+        // The sigma budget: the terms whose squares add to effective_sigma_deg^2.
+        const double position_term = std::sqrt(std::max(
+            0.0, bf.effective_sigma_deg * bf.effective_sigma_deg - used_sigma * used_sigma));
+        // Mirror candidates share the receiver sigma (the same |sin psi| for both).
+        jb["sigma_budget_deg"] = {{"receiver", d.receiver_sigma_deg},
+                                  {"heading", d.heading_sigma_deg},
+                                  {"declination", d.declination_sigma_deg},
+                                  {"station_position", position_term}};
+        jb["sigma_deg"] = used_sigma;
+        jb["effective_sigma_deg"] = bf.effective_sigma_deg;
+        jb["predicted_deg"] = bf.predicted_azimuth_deg;
+        jb["residual_deg"] = bf.residual_deg;
+        jb["normalized_residual"] = bf.normalized_residual;
+        jb["range_m"] = bf.range_m;
+        j["bearings"].push_back(jb);
       }
     }
     doc["fixes"].push_back(j);

@@ -62,7 +62,7 @@ TEST_CASE("the JSON summary of the demo is self-consistent and matches external 
     double s12 = 0, azi1 = 0, azi2 = 0;
     GeographicLib::Geodesic::WGS84().Inverse(double(b["lat"]), double(b["lon"]), lat, lon, s12,
                                              azi1, azi2);
-    double r = std::remainder(double(b["bearing_deg"]) - azi1, 360.0);
+    double r = std::remainder(double(b["true_bearing_deg"]) - azi1, 360.0);
     CHECK(double(b["residual_deg"]) == doctest::Approx(r).epsilon(1e-6));
     CHECK(double(b["range_m"]) == doctest::Approx(s12).epsilon(1e-9));
     const double z = r / double(b["effective_sigma_deg"]);

@@ -10,7 +10,7 @@
 
 using namespace lobfix;
 
-TEST_CASE("wrap_deg180 maps into (-180, 180] with signs handled at the edges") {
+TEST_CASE("wrap_deg180 maps into -180 exclusive to 180 inclusive, signs handled at the edges") {
   // Convention of docs/architecture.md: (-180, 180], no negative zero (common practice).
   CHECK(wrap_deg180(0.0) == 0.0);
   CHECK_FALSE(std::signbit(wrap_deg180(-0.0)));
@@ -24,7 +24,7 @@ TEST_CASE("wrap_deg180 maps into (-180, 180] with signs handled at the edges") {
   CHECK(std::isnan(wrap_deg180(std::nan(""))));
 }
 
-TEST_CASE("wrap_deg360 maps into [0, 360)") {
+TEST_CASE("wrap_deg360 maps into 0 inclusive to 360 exclusive") {
   CHECK(wrap_deg360(360.0) == 0.0);
   CHECK(wrap_deg360(0.0) == 0.0);
   CHECK_FALSE(std::signbit(wrap_deg360(-0.0)));

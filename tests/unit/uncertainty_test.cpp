@@ -128,7 +128,7 @@ TEST_CASE("ellipse scales reject what is not a probability") {
   CHECK_THROWS_AS(lobfix::ellipse_scale_estimated(0.95, -3), lobfix::InputError);
 }
 
-TEST_CASE("ellipse_scale_estimated: 2 F(2, nu; p) with sigma from the residuals") {
+TEST_CASE("ellipse_scale_estimated: 2 F(2, nu, p) with sigma from the residuals") {
   // METHODS.md "Confidence regions": k = sqrt(nu((1-p)^(-2/nu) - 1)) at 50/90/95/99% for
   // n bearings, nu = n - 2 [derived]; values to 4 significant figures.
   struct Row {

@@ -15,6 +15,7 @@ namespace lobfix {
 struct RunInfo {
   std::string input;                 ///< input file name as given
   int rows_read = 0;                 ///< data rows seen
+  int rows_converted = 0;            ///< rows that became true bearings (normalise)
   std::vector<Diagnostic> skipped;   ///< rows left out (with --skip-bad)
   std::vector<Diagnostic> warnings;  ///< e.g. unknown columns
   std::string version;               ///< lobfix version
