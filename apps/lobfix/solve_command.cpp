@@ -45,12 +45,40 @@ bool is_nmea_file(const std::string& path) {
 CLI::App* add_solve_command(CLI::App& app, SolveArgs& args) {
   CLI::App* cmd = app.add_subcommand(
       "solve",
-      "Solve a fix from a CSV of bearings.\n"
-      "Each row is one bearing: time (ISO 8601 with Z or an offset), station, lat, lon "
-      "(WGS 84 degrees), bearing_deg (true, clockwise from north, toward the transmitter), "
-      "sigma_deg (1-sigma uncertainty), and optionally pos_sigma_m, alt_m and signal "
-      "(bearings with different signal labels get one fix each). See docs/input-format.md.");
-  cmd->add_option("INPUT", args.input, "bearings CSV file ('-' reads standard input)")->required();
+      "Solve a fix from a file of bearings (CSV, or JSON Lines with the same field names).\n"
+      "Each row is one bearing: time (ISO 8601 with Z or an offset, or Unix seconds), "
+      "station, lat, lon (WGS 84 degrees; or leave them empty and give the station's GPS "
+      "track with --track), bearing_deg (clockwise, toward the transmitter) with its "
+      "reference (true, magnetic, grid, or relative to the platform's heading), sigma_deg "
+      "(1-sigma), and optionally pos_sigma_m, alt_m, signal (one fix per label), heading_deg, "
+      "bearing_alt_deg (a mirror candidate) or two-antenna phase readings. See "
+      "docs/input-format.md.");
+  cmd->add_option("INPUT", args.input, "bearings file, .csv or .jsonl ('-' reads standard input)")
+      ->required();
+  cmd->add_option("--track", args.tracks,
+                  "a station's GPS track: FILE.gpx (stations from the track names) or "
+                  "STATION=FILE (GPX or NMEA 0183 log); repeat for several")
+      ->take_all()
+      ->allow_extra_args(false);
+  cmd->add_option("--declination-deg", args.declination_deg,
+                  "magnetic declination (deg, east positive) for all magnetic bearings, "
+                  "instead of the World Magnetic Model 2025")
+      ->check(CLI::Range(-180.0, 180.0));
+  cmd->add_option("--grid-crs", args.grid_crs,
+                  "grid bearings refer to this projected CRS (e.g. EPSG:27700) instead of the "
+                  "station's UTM zone");
+  cmd->add_option("--gps-sigma-m", args.gps_sigma_m,
+                  "1-sigma of a track position (m), for positions and courses from tracks")
+      ->capture_default_str()
+      ->check(CLI::Range(0.1, 1000.0));
+  cmd->add_option("--track-gap-s", args.track_gap_s,
+                  "no interpolation across a gap in a track longer than this")
+      ->capture_default_str()
+      ->check(CLI::Range(1.0, 86400.0));
+  cmd->add_option("--track-tolerance-s", args.track_tolerance_s,
+                  "how far a bearing may lie outside its track's time span")
+      ->capture_default_str()
+      ->check(CLI::Range(0.0, 3600.0));
   cmd->add_option("--geojson", args.geojson, "write stations, rays, fix and ellipses as GeoJSON");
   cmd->add_option("--kml", args.kml, "write the same as KML (for Google-Earth-style viewers)");
   cmd->add_flag("--json", args.json, "print a machine-readable JSON summary instead of text");
