@@ -14,6 +14,7 @@
 #include "lobfix/export.hpp"
 #include "lobfix/normalise.hpp"
 #include "lobfix/reader.hpp"
+#include "lobfix/robust.hpp"
 #include "lobfix/solver.hpp"
 #include "lobfix/summary.hpp"
 #include "lobfix/track.hpp"
@@ -104,6 +105,22 @@ CLI::App* add_solve_command(CLI::App& app, SolveArgs& args) {
       ->check(CLI::Range(1e-6, 0.5));
   cmd->add_option("--seed", args.seed, "seed for the sampled start pairs (large inputs)")
       ->capture_default_str();
+  cmd->add_option("--robust", args.robust,
+                  "how to treat wild bearings (reflections): andrews (default: their pull "
+                  "fades to nothing beyond about 4 sigma), cauchy, huber, or none (plain least "
+                  "squares); see docs/robust.md")
+      ->capture_default_str()
+      ->check(CLI::IsMember({"none", "huber", "cauchy", "andrews"}));
+  cmd->add_option("--robust-tuning", args.robust_tuning,
+                  "tuning constant of the loss in sigmas (0: the loss's usual value)")
+      ->capture_default_str()
+      ->check(CLI::Range(0.0, 100.0));
+  cmd->add_option("--outlier-sigma", args.outlier_sigma,
+                  "a bearing this many sigmas off the robust fix is called an outlier")
+      ->capture_default_str()
+      ->check(CLI::Range(1.0, 100.0));
+  cmd->add_flag("--exclude-outliers", args.exclude_outliers,
+                "leave the outliers out and solve the rest again by least squares");
   cmd->add_flag("--skip-bad", args.skip_bad,
                 "skip rows with bad cells (each is listed on stderr) instead of failing");
   return cmd;
@@ -198,6 +215,10 @@ int run_solve(const SolveArgs& args) {
   SolveOptions solve_options;
   solve_options.max_range_m = args.max_range_km * 1000.0;
   solve_options.seed = args.seed;
+  solve_options.loss = *parse_robust_loss(args.robust);  // CLI11 checked the name
+  solve_options.loss_tuning = args.robust_tuning;
+  solve_options.outlier_z = args.outlier_sigma;
+  solve_options.exclude_outliers = args.exclude_outliers;
   UncertaintyOptions uncertainty_options;
   uncertainty_options.probabilities = args.confidence;
   uncertainty_options.alpha = args.alpha;
@@ -237,6 +258,10 @@ int run_solve(const SolveArgs& args) {
   run.rows_read = read.rows_read;
   run.rows_converted = static_cast<int>(bearings.size());
   run.version = LOBFIX_VERSION;
+  run.robust_loss = solve_options.loss;
+  run.robust_tuning = solve_options.loss_tuning > 0.0 ? solve_options.loss_tuning
+                                                      : default_tuning(solve_options.loss);
+  run.excluded_outliers = solve_options.exclude_outliers;
   if (args.skip_bad)
     run.skipped = problems;
   run.warnings = warnings;

@@ -27,6 +27,10 @@ struct SolveArgs {
   double gps_sigma_m = 5.0;
   double track_gap_s = 60.0;
   double track_tolerance_s = 2.0;
+  std::string robust = "andrews";
+  double robust_tuning = 0.0;
+  double outlier_sigma = 3.0;
+  bool exclude_outliers = false;
 };
 
 /// Register the subcommand; `args` must outlive the parse.

@@ -132,7 +132,8 @@ const FieldDef kFields[] = {
     {"probability", OFTReal},     {"semi_major_m", OFTReal}, {"semi_minor_m", OFTReal},
     {"orientation_deg", OFTReal}, {"lat", OFTReal},          {"lon", OFTReal},
     {"cep_m", OFTReal},           {"chi2", OFTReal},         {"dof", OFTInteger},
-    {"p_value", OFTReal},
+    {"p_value", OFTReal},         {"weight", OFTReal},       {"outlier", OFTInteger},
+    {"outliers", OFTInteger},
 };
 
 enum class Group { stations, rays, fixes, ellipses };
@@ -161,9 +162,10 @@ std::vector<const char*> group_fields(Group g) {
     case Group::rays:
       return {"kind",      "signal",       "station",
               "row",       "time",         "bearing_deg",
-              "sigma_deg", "residual_deg", "normalized_residual"};
+              "sigma_deg", "residual_deg", "normalized_residual",
+              "weight",    "outlier"};
     case Group::fixes:
-      return {"kind", "signal", "lat", "lon", "cep_m", "chi2", "dof", "p_value"};
+      return {"kind", "signal", "lat", "lon", "cep_m", "chi2", "dof", "p_value", "outliers"};
     case Group::ellipses:
       return {"kind", "signal", "probability", "semi_major_m", "semi_minor_m", "orientation_deg"};
   }
@@ -405,7 +407,9 @@ MapContent build_content(const std::vector<Bearing>& bearings,
                 {"bearing_deg", real_or_null(azimuth_deg)},
                 {"sigma_deg", real_or_null(sigma_deg)},
                 {"residual_deg", bf ? real_or_null(bf->residual_deg) : Value()},
-                {"normalized_residual", bf ? real_or_null(bf->normalized_residual) : Value()}};
+                {"normalized_residual", bf ? real_or_null(bf->normalized_residual) : Value()},
+                {"weight", bf ? real_or_null(bf->weight) : Value()},
+                {"outlier", bf ? Value(bf->outlier ? 1 : 0) : Value()}};
     f.geometry = line_geometry(ray_path(station, azimuth_deg, length_m, max_step_m));
     f.name = b.station + " " + bearing_text(azimuth_deg);
     f.description = strf("Line of bearing %s true, %.1f\xC2\xB0 (1 sigma), from station %s",
@@ -426,7 +430,14 @@ MapContent build_content(const std::vector<Bearing>& bearings,
     }
     f.description += "Drawn " + distance_text(length_m) + " long.";
     const std::size_t colour = colour_index(b.signal);
-    f.style = add_style(strf("ray-%zu", colour), strf("PEN(c:#%sFF,w:2px)", kPalette[colour]));
+    if (bf != nullptr && bf->outlier) {
+      // Distrusted bearings: thin, grey and half transparent, whatever the signal, so they
+      // read as set aside in colour and in grey print alike.
+      f.description += " The robust fit distrusts this bearing (an outlier).";
+      f.style = add_style("ray-outlier", "PEN(c:#7F7F7F80,w:1px)");
+    } else {
+      f.style = add_style(strf("ray-%zu", colour), strf("PEN(c:#%sFF,w:2px)", kPalette[colour]));
+    }
     content.features.push_back(std::move(f));
   }
 
@@ -447,7 +458,8 @@ MapContent build_content(const std::vector<Bearing>& bearings,
                 {"cep_m", real_or_null(u.cep_m)},
                 {"chi2", real_or_null(fx.chi2)},
                 {"dof", fx.dof},
-                {"p_value", real_or_null(u.p_value)}};
+                {"p_value", real_or_null(u.p_value)},
+                {"outliers", fx.outliers}};
     f.geometry = point_geometry(fx.position);
     f.name = fx.signal.empty() ? std::string("fix") : "fix " + fx.signal;
     f.description = "Fix of signal " + label + " at " + position_text(fx.position) + ". ";

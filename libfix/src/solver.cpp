@@ -30,7 +30,9 @@
 #include <utility>
 
 #include "detail/ray_crossing.hpp"
+#include "detail/robust_ceres.hpp"
 #include "lobfix/error.hpp"
+#include "lobfix/robust.hpp"
 
 namespace lobfix {
 
@@ -99,10 +101,16 @@ FrameJacobian frame_jacobian(double x_m, double y_m, const LocalPoint& p) {
 // projection from the frame to the ellipsoid is done once per evaluation.
 class BearingsCost final : public ceres::CostFunction {
  public:
+  // Residuals of bearings [begin, end).
   BearingsCost(const std::vector<Bearing>& bearings, const std::vector<double>& sigma_rad,
-               const LatLon& centre, int threads)
-      : bearings_(bearings), sigma_rad_(sigma_rad), centre_(centre), threads_(threads) {
-    set_num_residuals(static_cast<int>(bearings.size()));
+               const LatLon& centre, int threads, std::size_t begin, std::size_t end)
+      : bearings_(bearings),
+        sigma_rad_(sigma_rad),
+        centre_(centre),
+        threads_(threads),
+        begin_(begin),
+        end_(end) {
+    set_num_residuals(static_cast<int>(end - begin));
     mutable_parameter_block_sizes()->push_back(2);
   }
 
@@ -115,9 +123,9 @@ class BearingsCost final : public ceres::CostFunction {
     double* jac = jacobians != nullptr ? jacobians[0] : nullptr;
     bool ok = true;
     std::mutex failed_mutex;  // each range writes only its own residuals and Jacobian rows
-    parallel_ranges(bearings_.size(), threads_, [&](std::size_t begin, std::size_t end) {
+    parallel_ranges(end_ - begin_, threads_, [&](std::size_t begin, std::size_t end) {
       for (std::size_t i = begin; i < end; ++i) {
-        const Bearing& b = bearings_[i];
+        const Bearing& b = bearings_[begin_ + i];
         const GeodesicLine12 g = geodesic_inverse_azimuths({b.lat_deg, b.lon_deg}, p.point);
         // The derivative below holds for a signed m12 (negative beyond a conjugate point);
         // only m12 = 0, a conjugate point itself, leaves the azimuth non-differentiable.
@@ -126,7 +134,7 @@ class BearingsCost final : public ceres::CostFunction {
           ok = false;
           return;
         }
-        const double inv_sigma = 1.0 / sigma_rad_[i];
+        const double inv_sigma = 1.0 / sigma_rad_[begin_ + i];
         residuals[i] = angle_diff_deg(b.azimuth_deg, g.azi1_deg) * kDegToRad * inv_sigma;
         if (jac != nullptr) {
           const double ca2 = std::cos(g.azi2_deg * kDegToRad);
@@ -147,6 +155,8 @@ class BearingsCost final : public ceres::CostFunction {
   const std::vector<double>& sigma_rad_;
   LatLon centre_;
   int threads_;
+  std::size_t begin_;
+  std::size_t end_;
 };
 
 // Ceres reports through glog on stderr; the library never prints, and its outcomes reach
@@ -208,6 +218,10 @@ std::string SolveOptions::validate() const {
     return "convergence step must be > 0";
   if (max_iterations < 1)
     return "at least one iteration is needed";
+  if (!(outlier_z > 0.0))
+    return "the outlier threshold must be a positive number of sigmas";
+  if (!(loss_tuning >= 0.0) || !std::isfinite(loss_tuning))
+    return "the loss tuning constant must be >= 0 (0: the default)";
   if (max_start_pairs < 1)
     return "at least one start pair is needed";
   if (num_threads < 0)
@@ -312,6 +326,8 @@ Fix solve_from(const std::vector<Bearing>& bearings, const LatLon& start,
                const SolveOptions& options);
 Fix solve_ambiguous(const std::vector<Bearing>& bearings, const LatLon& start,
                     const SolveOptions& options);
+Fix refit_without_outliers(const std::vector<Bearing>& bearings, const Fix& robust,
+                           const SolveOptions& options);
 
 // A start for bearings with mirror candidates: every candidate is a ray; the crossing of two
 // rays of different bearings that the most bearings agree with (one of their candidates
@@ -415,8 +431,11 @@ Fix solve_fix(const std::vector<Bearing>& bearings, const SolveOptions& options)
   const bool any_ambiguous = std::any_of(bearings.begin(), bearings.end(), [](const Bearing& b) {
     return b.alt_azimuth_deg.has_value();
   });
+  // Wild bearings and mirror candidates both call for a start that most bearings agree
+  // with, rather than the median of all crossings.
+  const bool consensus = any_ambiguous || options.loss != RobustLoss::none;
   const std::optional<LatLon> start =
-      any_ambiguous ? consensus_start(bearings, options) : start_point(bearings, options);
+      consensus ? consensus_start(bearings, options) : start_point(bearings, options);
   if (!start) {
     return failed(FixStatus::no_crossing,
                   "no two rays cross ahead of their stations within " +
@@ -424,8 +443,12 @@ Fix solve_fix(const std::vector<Bearing>& bearings, const SolveOptions& options)
                       ": the bearings are parallel or diverge; take a bearing from a place "
                       "at a wider angle to the others");
   }
-  return any_ambiguous ? solve_ambiguous(bearings, *start, options)
-                       : solve_from(bearings, *start, options);
+  Fix fix = any_ambiguous ? solve_ambiguous(bearings, *start, options)
+                          : solve_from(bearings, *start, options);
+  if (fix.ok() && options.exclude_outliers && fix.outliers > 0) {
+    fix = refit_without_outliers(bearings, fix, options);
+  }
+  return fix;
 }
 
 namespace {
@@ -442,7 +465,21 @@ struct PointFit {
   std::size_t farthest = 0;
 };
 
-PointFit fit_at(const std::vector<Bearing>& bearings, const LatLon& p, int threads) {
+// The loss in use and its tuning constant (in sigmas).
+struct Robustness {
+  RobustLoss loss = RobustLoss::none;
+  double a = 1.0;
+};
+
+Robustness robustness(const SolveOptions& options) {
+  return {options.loss,
+          options.loss_tuning > 0.0 ? options.loss_tuning : default_tuning(options.loss)};
+}
+
+// With a robust loss, each bearing enters with the weight rho'(z^2) (iteratively reweighted
+// least squares: Holland and Welsch 1977), which is also its reported weight.
+PointFit fit_at(const std::vector<Bearing>& bearings, const LatLon& p, int threads,
+                const Robustness& rob) {
   const std::size_t n = bearings.size();
   PointFit out;
   out.fits.resize(n);
@@ -467,10 +504,12 @@ PointFit fit_at(const std::vector<Bearing>& bearings, const LatLon& p, int threa
   });
   // Sums in input order, whatever the thread count.
   for (std::size_t i = 0; i < n; ++i) {
-    const BearingFit& bf = out.fits[i];
-    out.chi2 += bf.normalized_residual * bf.normalized_residual;
-    out.information += rows[i] * rows[i].transpose();
-    out.jtr += rows[i] * bf.normalized_residual;
+    BearingFit& bf = out.fits[i];
+    const double z2 = bf.normalized_residual * bf.normalized_residual;
+    bf.weight = robust_rho(rob.loss, z2, rob.a).d1;
+    out.chi2 += z2;
+    out.information += bf.weight * rows[i] * rows[i].transpose();
+    out.jtr += bf.weight * rows[i] * bf.normalized_residual;
     if (bf.range_m < out.fits[out.nearest].range_m)
       out.nearest = i;
     if (bf.range_m > out.fits[out.farthest].range_m)
@@ -487,8 +526,18 @@ std::optional<LatLon> ceres_step(const std::vector<Bearing>& bearings,
   double xy[2] = {0.0, 0.0};
   ceres::Problem::Options problem_options;
   ceres::Problem problem(problem_options);
-  problem.AddResidualBlock(new BearingsCost(bearings, sigma_rad, centre, options.num_threads),
-                           nullptr, xy);
+  const Robustness rob = robustness(options);
+  if (rob.loss == RobustLoss::none) {
+    problem.AddResidualBlock(
+        new BearingsCost(bearings, sigma_rad, centre, options.num_threads, 0, bearings.size()),
+        nullptr, xy);
+  } else {
+    // A loss acts on a whole residual block, so each bearing gets a block of its own.
+    for (std::size_t i = 0; i < bearings.size(); ++i) {
+      problem.AddResidualBlock(new BearingsCost(bearings, sigma_rad, centre, 1, i, i + 1),
+                               new detail::RobustCeresLoss(rob.loss, rob.a), xy);
+    }
+  }
   ceres::Solver::Options solver_options;
   solver_options.linear_solver_type = ceres::DENSE_QR;
   solver_options.trust_region_strategy_type = ceres::LEVENBERG_MARQUARDT;
@@ -543,7 +592,7 @@ Fix solve_from(const std::vector<Bearing>& bearings, const LatLon& start,
   PointFit fit;
   bool converged = false;
   for (int k = 0; k < options.max_iterations && !converged; ++k) {
-    fit = fit_at(bearings, *centre, options.num_threads);
+    fit = fit_at(bearings, *centre, options.num_threads, robustness(options));
     const Eigen::Vector2d step = fit.information.ldlt().solve(fit.jtr);
     const double step_m = step.allFinite() ? step.norm() : 0.0;
     converged = step_m < options.convergence_m;
@@ -572,6 +621,22 @@ Fix solve_from(const std::vector<Bearing>& bearings, const LatLon& start,
   fix.start_distance_m = geodesic_inverse(start, *centre).s12_m;
   fix.chi2 = fit.chi2;
   fix.dof = static_cast<int>(n) - 2;
+  if (options.loss != RobustLoss::none) {
+    // Verdicts: a bearing more than outlier_z sigmas off the robust fix is an outlier; the
+    // goodness of fit is then that of the others.
+    fix.chi2 = 0.0;
+    int inliers = 0;
+    for (BearingFit& bf : fit.fits) {
+      bf.outlier = std::fabs(bf.normalized_residual) > options.outlier_z;
+      if (bf.outlier) {
+        ++fix.outliers;
+      } else {
+        ++inliers;
+        fix.chi2 += bf.normalized_residual * bf.normalized_residual;
+      }
+    }
+    fix.dof = inliers - 2;
+  }
   const BearingFit& nearest = fit.fits[fit.nearest];
   const BearingFit& farthest = fit.fits[fit.farthest];
   if (nearest.range_m < options.at_station_m) {
@@ -654,6 +719,51 @@ Fix solve_ambiguous(const std::vector<Bearing>& bearings, const LatLon& start,
     bf.rejected_azimuth_deg = use_alt[bf.index] ? b.azimuth_deg : *b.alt_azimuth_deg;
   }
   return fix;
+}
+
+// --exclude-outliers: least squares on the bearings the robust fit trusted, starting from
+// its fix (with the mirror choices it made); the excluded bearings are still listed, with
+// their residuals at the new fix, weight 0 and the outlier verdict.
+Fix refit_without_outliers(const std::vector<Bearing>& bearings, const Fix& robust,
+                           const SolveOptions& options) {
+  std::vector<Bearing> kept;
+  std::vector<std::size_t> kept_index;
+  std::vector<Bearing> chosen = bearings;
+  for (const BearingFit& bf : robust.bearings) {
+    if (bf.used_alt) {
+      chosen[bf.index].azimuth_deg = *bearings[bf.index].alt_azimuth_deg;
+      chosen[bf.index].sigma_deg =
+          bearings[bf.index].alt_sigma_deg.value_or(bearings[bf.index].sigma_deg);
+    }
+    chosen[bf.index].alt_azimuth_deg.reset();
+    if (!bf.outlier) {
+      kept.push_back(chosen[bf.index]);
+      kept_index.push_back(bf.index);
+    }
+  }
+  SolveOptions plain = options;
+  plain.loss = RobustLoss::none;
+  plain.exclude_outliers = false;
+  Fix refit = solve_from(kept, robust.position, plain);
+  if (!refit.ok())
+    return refit;
+  Fix out = refit;
+  out.outliers = robust.outliers;
+  out.message = std::to_string(robust.outliers) +
+                " outlier bearing(s) excluded and the rest solved again by least squares";
+  const PointFit all = fit_at(chosen, refit.position, options.num_threads, Robustness{});
+  out.bearings = all.fits;
+  for (std::size_t k = 0; k < robust.bearings.size(); ++k) {
+    const BearingFit& before = robust.bearings[k];
+    BearingFit& now = out.bearings[before.index];
+    now.ambiguous = before.ambiguous;
+    now.used_alt = before.used_alt;
+    now.rejected_azimuth_deg = before.rejected_azimuth_deg;
+    now.outlier = before.outlier;
+    if (now.outlier)
+      now.weight = 0.0;
+  }
+  return out;
 }
 
 }  // namespace

@@ -80,6 +80,20 @@ std::string fit_words(const Fix& fix, const Uncertainty& u) {
   return fmt::format("consistent with the stated sigmas (p = {:.3g})", u.p_value);
 }
 
+std::string loss_name(RobustLoss loss) {
+  switch (loss) {
+    case RobustLoss::none:
+      return "no robust";
+    case RobustLoss::huber:
+      return "Huber";
+    case RobustLoss::cauchy:
+      return "Cauchy";
+    case RobustLoss::andrews:
+      return "Andrews' sine";
+  }
+  return "";
+}
+
 // The true azimuth the solver used (the chosen one of two mirror candidates).
 double used_azimuth_deg(const Bearing& b, const BearingFit& bf) {
   return bf.used_alt && b.alt_azimuth_deg ? *b.alt_azimuth_deg : b.azimuth_deg;
@@ -185,6 +199,22 @@ std::string text_summary(const RunInfo& run, const std::vector<Bearing>& bearing
       words.replace(k, 1, "\n           ");
     }
     out += "           " + words + "\n";
+    if (run.robust_loss != RobustLoss::none) {
+      const std::size_t n_bearings = f.bearings.size();
+      std::string robust_words = fmt::format(
+          "{} loss (a = {:.4g} sigma): {} of {} bearings distrusted (residual over the outlier "
+          "threshold){}",
+          loss_name(run.robust_loss), run.robust_tuning, f.outliers, n_bearings,
+          f.outliers == 0 ? ""
+          : run.excluded_outliers
+              ? "; they were left out and the rest solved again by least squares"
+              : "; such bearings weigh little or nothing in the fix and are left out of the chi-square");
+      robust_words = wrap_words(robust_words, 78);
+      for (std::size_t k = 0; (k = robust_words.find('\n', k)) != std::string::npos; k += 12) {
+        robust_words.replace(k, 1, "\n           ");
+      }
+      out += "Robust     " + robust_words + "\n";
+    }
     if (u.sigmas_too_small) {
       out += "Ellipses   (scaled by the residuals, F distribution)\n";
       for (const Ellipse& e : u.scaled_ellipses)
@@ -192,15 +222,17 @@ std::string text_summary(const RunInfo& run, const std::vector<Bearing>& bearing
       out += fmt::format("CEP        {} (scaled)\n", distance_text(u.scaled_cep_m));
     }
     out += "\n";
-    out +=
-        fmt::format("{:>6}  {:<14} {:<24} {:>8} {:>6} {:>9} {:>7} {:>10}  {}\n", "line", "station",
-                    "time", "bearing", "sigma", "residual", "resid/s", "range", "derived from");
+    out += fmt::format("{:>6}  {:<14} {:<24} {:>8} {:>6} {:>9} {:>7} {:>6} {:>10}  {}\n", "line",
+                       "station", "time", "bearing", "sigma", "residual", "resid/s", "weight",
+                       "range", "derived from");
     for (const BearingFit& bf : f.bearings) {
       const Bearing& b = bearings[bf.index];
-      out += fmt::format("{:>6}  {:<14} {:<24} {:>8.1f} {:>6.2f} {:>+9.2f} {:>+7.2f} {:>10}  {}\n",
-                         b.source.line, b.station, b.time_text, used_azimuth_deg(b, bf),
-                         bf.effective_sigma_deg, bf.residual_deg, bf.normalized_residual,
-                         distance_text(bf.range_m), derivation_words(b, bf));
+      out += fmt::format(
+          "{:>6}  {:<14} {:<24} {:>8.1f} {:>6.2f} {:>+9.2f} {:>+7.2f} {:>6} {:>10}  {}\n",
+          b.source.line, b.station, b.time_text, used_azimuth_deg(b, bf), bf.effective_sigma_deg,
+          bf.residual_deg, bf.normalized_residual,
+          bf.outlier ? std::string("OUT") : fmt::format("{:.2f}", bf.weight),
+          distance_text(bf.range_m), derivation_words(b, bf));
     }
   }
   out += "\n";
@@ -261,6 +293,10 @@ std::string json_summary(const RunInfo& run, const std::vector<Bearing>& bearing
         j["scaled_ellipses"].push_back(ellipse_json(e));
       if (u.sigmas_too_small)
         j["scaled_cep_m"] = u.scaled_cep_m;
+      j["robust_loss"] = to_string(run.robust_loss);
+      j["robust_tuning"] = run.robust_tuning;
+      j["outliers"] = f.outliers;
+      j["outliers_excluded"] = run.excluded_outliers && f.outliers > 0;
       j["iterations"] = f.iterations;
       j["bearings"] = nlohmann::ordered_json::array();
       for (const BearingFit& bf : f.bearings) {
@@ -308,6 +344,8 @@ std::string json_summary(const RunInfo& run, const std::vector<Bearing>& bearing
         jb["residual_deg"] = bf.residual_deg;
         jb["normalized_residual"] = bf.normalized_residual;
         jb["range_m"] = bf.range_m;
+        jb["weight"] = bf.weight;
+        jb["outlier"] = bf.outlier;
         j["bearings"].push_back(jb);
       }
     }

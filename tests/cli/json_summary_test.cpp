@@ -53,7 +53,12 @@ TEST_CASE("the JSON summary of the demo is self-consistent and matches external 
     CHECK(double(e["semi_major_m"]) == doctest::Approx(std::sqrt(k2 * lmax)).epsilon(2e-4));
     CHECK(double(e["semi_minor_m"]) == doctest::Approx(std::sqrt(k2 * lmin)).epsilon(2e-4));
   }
-  CHECK(fix["dof"] == int(fix["bearings"].size()) - 2);
+  // With a robust loss (the command's default) the outliers are left out of the fit check.
+  int inliers = 0;
+  for (const auto& b : fix["bearings"])
+    inliers += b["outlier"] ? 0 : 1;
+  CHECK(fix["dof"] == inliers - 2);
+  CHECK(fix["outliers"] == int(fix["bearings"].size()) - inliers);
 
   // Each residual is the measured bearing minus the GeographicLib azimuth from the station
   // to the reported fix (Karney 2013), wrapped.
@@ -66,7 +71,10 @@ TEST_CASE("the JSON summary of the demo is self-consistent and matches external 
     CHECK(double(b["residual_deg"]) == doctest::Approx(r).epsilon(1e-6));
     CHECK(double(b["range_m"]) == doctest::Approx(s12).epsilon(1e-9));
     const double z = r / double(b["effective_sigma_deg"]);
-    chi2 += z * z;
+    if (!b["outlier"])
+      chi2 += z * z;
+    // The verdict: outliers are the bearings over 3 sigma (the default --outlier-sigma).
+    CHECK(bool(b["outlier"]) == (std::fabs(z) > 3.0));
   }
   CHECK(double(fix["chi2"]) == doctest::Approx(chi2).epsilon(1e-6));
 }

@@ -37,6 +37,11 @@ struct BearingFit {
   bool used_alt = false;
   /// The candidate not used (true azimuth), when ambiguous.
   double rejected_azimuth_deg = 0;
+  /// Weight rho'(z^2) the robust loss gave the bearing at the fix, in [0, 1]; 1 for least
+  /// squares, 0 for a bearing excluded as an outlier.
+  double weight = 1;
+  /// The robust fit distrusts this bearing (|normalised residual| > outlier_z).
+  bool outlier = false;
 };
 
 /// A position estimate with its covariance, or a status saying why there is none.
@@ -47,8 +52,9 @@ struct Fix {
   LatLon position;
   /// Covariance of the east/north error at the fix (m^2), row-major [[ee, en], [ne, nn]].
   std::array<std::array<double, 2>, 2> covariance_en_m2{};
-  double chi2 = 0.0;                 ///< sum of squared normalised residuals
-  int dof = 0;                       ///< degrees of freedom, n - 2
+  double chi2 = 0.0;  ///< sum of squared normalised residuals
+  int dof = 0;        ///< degrees of freedom, n - 2 (with a robust loss: inliers - 2)
+  int outliers = 0;   ///< bearings the robust fit flagged (chi2 and dof leave them out)
   std::vector<BearingFit> bearings;  ///< one per bearing used, in input order
   int iterations = 0;                ///< solver iterations (all re-centrings together)
   double start_distance_m = 0.0;     ///< distance from the start point to the fix

@@ -9,6 +9,7 @@
 
 #include "lobfix/bearing.hpp"
 #include "lobfix/fix.hpp"
+#include "lobfix/robust.hpp"
 
 namespace lobfix {
 
@@ -32,6 +33,16 @@ struct SolveOptions {
   /// and sums are taken in a fixed order, so the result does not depend on the count);
   /// 0 means one per hardware thread. Inputs under 2,000 bearings use one thread.
   int num_threads = 0;
+
+  /// Loss for wild bearings (robust.hpp); with any loss but none the start is a consensus
+  /// crossing and every bearing gets a weight and a verdict.
+  RobustLoss loss = RobustLoss::none;
+  /// Tuning constant of the loss in sigmas; 0 means default_tuning(loss).
+  double loss_tuning = 0.0;
+  /// A bearing whose residual exceeds this many sigmas at the robust fix is an outlier.
+  double outlier_z = 3.0;
+  /// After a robust fit, solve again by least squares without the outliers.
+  bool exclude_outliers = false;
 
   /// Empty when valid, else the reason.
   std::string validate() const;

@@ -7,18 +7,22 @@
 
 #include "lobfix/bearing.hpp"
 #include "lobfix/error.hpp"
+#include "lobfix/robust.hpp"
 #include "lobfix/uncertainty.hpp"
 
 namespace lobfix {
 
 /// What the run read, for the summaries.
 struct RunInfo {
-  std::string input;                 ///< input file name as given
-  int rows_read = 0;                 ///< data rows seen
-  int rows_converted = 0;            ///< rows that became true bearings (normalise)
-  std::vector<Diagnostic> skipped;   ///< rows left out (with --skip-bad)
-  std::vector<Diagnostic> warnings;  ///< e.g. unknown columns
-  std::string version;               ///< lobfix version
+  std::string input;                          ///< input file name as given
+  int rows_read = 0;                          ///< data rows seen
+  int rows_converted = 0;                     ///< rows that became true bearings (normalise)
+  std::vector<Diagnostic> skipped;            ///< rows left out (with --skip-bad)
+  std::vector<Diagnostic> warnings;           ///< e.g. unknown columns
+  std::string version;                        ///< lobfix version
+  RobustLoss robust_loss = RobustLoss::none;  ///< the loss the solve used
+  double robust_tuning = 1.0;                 ///< its tuning constant (sigmas)
+  bool excluded_outliers = false;             ///< outliers left out and the rest refitted
 };
 
 /// A plain-text summary for a field user: each fix in decimal degrees, DMS, MGRS and UTM,
