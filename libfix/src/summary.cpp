@@ -208,7 +208,8 @@ std::string text_summary(const RunInfo& run, const std::vector<Bearing>& bearing
           f.outliers == 0 ? ""
           : run.excluded_outliers
               ? "; they were left out and the rest solved again by least squares"
-              : "; such bearings weigh little or nothing in the fix and are left out of the chi-square");
+              : "; such bearings weigh little or nothing in the fix and are left out of the "
+                "chi-square");
       robust_words = wrap_words(robust_words, 78);
       for (std::size_t k = 0; (k = robust_words.find('\n', k)) != std::string::npos; k += 12) {
         robust_words.replace(k, 1, "\n           ");
