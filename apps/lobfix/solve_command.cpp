@@ -228,6 +228,7 @@ int run_solve(const SolveArgs& args) {
     for (Fix& fix : solve_by_signal(bearings, solve_options)) {
       FixResult r;
       r.uncertainty = describe_uncertainty(fix, uncertainty_options);
+      r.motion = test_for_motion(fix, bearings, args.alpha);
       r.fix = std::move(fix);
       results.push_back(std::move(r));
     }

@@ -20,6 +20,7 @@
 
 #include <Eigen/Dense>
 #include <algorithm>
+#include <atomic>
 #include <cmath>
 #include <limits>
 #include <map>
@@ -770,18 +771,46 @@ Fix refit_without_outliers(const std::vector<Bearing>& bearings, const Fix& robu
 
 std::vector<Fix> solve_by_signal(const std::vector<Bearing>& bearings,
                                  const SolveOptions& options) {
-  std::vector<Fix> fixes;
-  for (const SignalGroup& group : group_by_signal(bearings)) {
-    std::vector<Bearing> subset;
-    subset.reserve(group.indices.size());
-    for (std::size_t i : group.indices)
-      subset.push_back(bearings[i]);
-    Fix fix = solve_fix(subset, options);
-    fix.signal = group.signal;
-    for (BearingFit& bf : fix.bearings)
-      bf.index = group.indices[bf.index];
-    fixes.push_back(std::move(fix));
+  if (const std::string why = options.validate(); !why.empty()) {
+    throw InputError({"", 0, 0, "", why});
   }
+  const std::vector<SignalGroup> groups = group_by_signal(bearings);
+  std::vector<Fix> fixes(groups.size());
+  const auto solve_group = [&](std::size_t g, const SolveOptions& o) {
+    std::vector<Bearing> subset;
+    subset.reserve(groups[g].indices.size());
+    for (std::size_t i : groups[g].indices)
+      subset.push_back(bearings[i]);
+    Fix fix = solve_fix(subset, o);
+    fix.signal = groups[g].signal;
+    for (BearingFit& bf : fix.bearings)
+      bf.index = groups[g].indices[bf.index];
+    fixes[g] = std::move(fix);
+  };
+  // Several signals: one worker per hardware thread takes signals in turn, each solved on a
+  // single thread; every result lands in its own slot, so the output is the same whatever
+  // the scheduling.
+  const unsigned hardware = std::max(1U, std::thread::hardware_concurrency());
+  const std::size_t workers = std::min<std::size_t>(
+      groups.size(),
+      options.num_threads > 0 ? static_cast<std::size_t>(options.num_threads) : hardware);
+  if (workers <= 1) {
+    for (std::size_t g = 0; g < groups.size(); ++g)
+      solve_group(g, options);
+    return fixes;
+  }
+  SolveOptions single = options;
+  single.num_threads = 1;
+  std::atomic<std::size_t> next{0};
+  std::vector<std::thread> pool;
+  for (std::size_t w = 0; w < workers; ++w) {
+    pool.emplace_back([&] {
+      for (std::size_t g = next++; g < groups.size(); g = next++)
+        solve_group(g, single);
+    });
+  }
+  for (std::thread& t : pool)
+    t.join();
   return fixes;
 }
 

@@ -199,6 +199,30 @@ std::string text_summary(const RunInfo& run, const std::vector<Bearing>& bearing
       words.replace(k, 1, "\n           ");
     }
     out += "           " + words + "\n";
+    {
+      const MotionTest& m = r.motion;
+      std::string motion_words =
+          m.stations_tested == 0
+              ? std::string(
+                    "no test possible (no station took three bearings at different "
+                    "times)")
+          : m.moving_suspected
+              ? fmt::format(
+                    "the bearings drift with time (trend test over {} stations, p = "
+                    "{:.3g}; most at station '{}', {:+.2f} deg/min): the transmitter "
+                    "may be moving, and one fix is then only an average position",
+                    m.stations_tested, m.p_value, m.strongest_station,
+                    m.strongest_drift_deg_per_min)
+              : fmt::format(
+                    "no sign of a moving transmitter (trend test over {} stations, p "
+                    "= {:.3g})",
+                    m.stations_tested, m.p_value);
+      motion_words = wrap_words(motion_words, 78);
+      for (std::size_t k = 0; (k = motion_words.find('\n', k)) != std::string::npos; k += 12) {
+        motion_words.replace(k, 1, "\n           ");
+      }
+      out += "Motion     " + motion_words + "\n";
+    }
     if (run.robust_loss != RobustLoss::none) {
       const std::size_t n_bearings = f.bearings.size();
       std::string robust_words = fmt::format(
@@ -298,6 +322,12 @@ std::string json_summary(const RunInfo& run, const std::vector<Bearing>& bearing
       j["robust_tuning"] = run.robust_tuning;
       j["outliers"] = f.outliers;
       j["outliers_excluded"] = run.excluded_outliers && f.outliers > 0;
+      j["motion"] = {{"stations_tested", r.motion.stations_tested},
+                     {"statistic", r.motion.statistic},
+                     {"p_value", r.motion.p_value},
+                     {"moving_suspected", r.motion.moving_suspected},
+                     {"strongest_station", r.motion.strongest_station},
+                     {"strongest_drift_deg_per_min", r.motion.strongest_drift_deg_per_min}};
       j["iterations"] = f.iterations;
       j["bearings"] = nlohmann::ordered_json::array();
       for (const BearingFit& bf : f.bearings) {

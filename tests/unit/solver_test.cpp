@@ -432,3 +432,31 @@ TEST_CASE("the result does not depend on the thread count, to the last bit") {
   CHECK(f1.covariance_en_m2[0][0] == f2.covariance_en_m2[0][0]);
   CHECK(miss_m(f1, t) < 50.0);
 }
+
+TEST_CASE("several signals solved side by side give what one thread gives") {
+  std::mt19937_64 rng(12);
+  std::normal_distribution<double> noise(0.0, 2.0);
+  std::vector<Bearing> all;
+  for (int s = 0; s < 6; ++s) {
+    const LatLon t{10.0 + 0.1 * s, 20.0};
+    for (const double az : {15.0, 100.0, 170.0, 260.0, 330.0}) {
+      Bearing b = exact_bearing("A", around(t, az, 4000.0 + 300.0 * s), t, 2.0, noise(rng));
+      b.signal = "ch" + std::to_string(s);
+      all.push_back(b);
+    }
+  }
+  SolveOptions one;
+  one.num_threads = 1;
+  SolveOptions two;
+  two.num_threads = 2;
+  const auto serial = solve_by_signal(all, one);
+  const auto parallel = solve_by_signal(all, two);
+  REQUIRE(serial.size() == 6);
+  REQUIRE(parallel.size() == 6);
+  for (std::size_t k = 0; k < 6; ++k) {
+    CHECK(serial[k].signal == parallel[k].signal);
+    CHECK(serial[k].position.lat_deg == parallel[k].position.lat_deg);
+    CHECK(serial[k].position.lon_deg == parallel[k].position.lon_deg);
+    CHECK(serial[k].chi2 == parallel[k].chi2);
+  }
+}

@@ -7,6 +7,7 @@
 #include <array>
 #include <vector>
 
+#include "lobfix/consistency.hpp"
 #include "lobfix/fix.hpp"
 
 namespace lobfix {
@@ -85,6 +86,7 @@ Uncertainty describe_uncertainty(const Fix& fix, const UncertaintyOptions& optio
 /// A solved signal with its uncertainty, as handed to products and export.
 struct FixResult {
   Fix fix;
+  MotionTest motion;        ///< does one stationary transmitter explain the bearings over time?
   Uncertainty uncertainty;  ///< meaningful only when fix.ok()
 };
 
