@@ -6,6 +6,9 @@
 #include "exit_codes.hpp"
 #include "solve_command.hpp"
 
+// Bad input and unwritable outputs are caught where they arise (solve_command.cpp); any other
+// exception is a lobfix bug (tier 3, docs/architecture.md) and should stop the program with
+// std::terminate's message. NOLINTNEXTLINE(bugprone-exception-escape)
 int main(int argc, char** argv) {
   CLI::App app{
       "lobfix: turns lines of bearing from several stations into a transmitter fix with a "

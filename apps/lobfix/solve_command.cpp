@@ -121,6 +121,13 @@ CLI::App* add_solve_command(CLI::App& app, SolveArgs& args) {
       ->check(CLI::Range(1.0, 100.0));
   cmd->add_flag("--exclude-outliers", args.exclude_outliers,
                 "leave the outliers out and solve the rest again by least squares");
+  cmd->add_flag("--estimate-station-bias", args.estimate_station_bias,
+                "estimate a constant bearing offset per station (a misaligned mount or "
+                "compass) where its bearings come from places far enough apart");
+  cmd->add_option("--bias-prior-deg", args.bias_prior_deg,
+                  "1-sigma of the prior on each station offset")
+      ->capture_default_str()
+      ->check(CLI::Range(0.1, 90.0));
   cmd->add_flag("--skip-bad", args.skip_bad,
                 "skip rows with bad cells (each is listed on stderr) instead of failing");
   return cmd;
@@ -219,6 +226,8 @@ int run_solve(const SolveArgs& args) {
   solve_options.loss_tuning = args.robust_tuning;
   solve_options.outlier_z = args.outlier_sigma;
   solve_options.exclude_outliers = args.exclude_outliers;
+  if (args.estimate_station_bias)
+    solve_options.station_bias_prior_deg = args.bias_prior_deg;
   UncertaintyOptions uncertainty_options;
   uncertainty_options.probabilities = args.confidence;
   uncertainty_options.alpha = args.alpha;

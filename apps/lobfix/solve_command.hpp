@@ -31,6 +31,8 @@ struct SolveArgs {
   double robust_tuning = 0.0;
   double outlier_sigma = 3.0;
   bool exclude_outliers = false;
+  bool estimate_station_bias = false;
+  double bias_prior_deg = 10.0;
 };
 
 /// Register the subcommand; `args` must outlive the parse.

@@ -219,6 +219,8 @@ std::string SolveOptions::validate() const {
     return "convergence step must be > 0";
   if (max_iterations < 1)
     return "at least one iteration is needed";
+  if (!(station_bias_prior_deg >= 0.0) || station_bias_prior_deg > 90.0)
+    return "the station-offset prior must be between 0 and 90 degrees";
   if (!(outlier_z > 0.0))
     return "the outlier threshold must be a positive number of sigmas";
   if (!(loss_tuning >= 0.0) || !std::isfinite(loss_tuning))
@@ -329,6 +331,8 @@ Fix solve_ambiguous(const std::vector<Bearing>& bearings, const LatLon& start,
                     const SolveOptions& options);
 Fix refit_without_outliers(const std::vector<Bearing>& bearings, const Fix& robust,
                            const SolveOptions& options);
+Fix estimate_station_biases(const std::vector<Bearing>& bearings, const Fix& base,
+                            const SolveOptions& options);
 
 // A start for bearings with mirror candidates: every candidate is a ray; the crossing of two
 // rays of different bearings that the most bearings agree with (one of their candidates
@@ -448,6 +452,9 @@ Fix solve_fix(const std::vector<Bearing>& bearings, const SolveOptions& options)
                           : solve_from(bearings, *start, options);
   if (fix.ok() && options.exclude_outliers && fix.outliers > 0) {
     fix = refit_without_outliers(bearings, fix, options);
+  }
+  if (fix.ok() && options.station_bias_prior_deg > 0.0) {
+    fix = estimate_station_biases(bearings, fix, options);
   }
   return fix;
 }
@@ -754,8 +761,7 @@ Fix refit_without_outliers(const std::vector<Bearing>& bearings, const Fix& robu
                 " outlier bearing(s) excluded and the rest solved again by least squares";
   const PointFit all = fit_at(chosen, refit.position, options.num_threads, Robustness{});
   out.bearings = all.fits;
-  for (std::size_t k = 0; k < robust.bearings.size(); ++k) {
-    const BearingFit& before = robust.bearings[k];
+  for (const BearingFit& before : robust.bearings) {
     BearingFit& now = out.bearings[before.index];
     now.ambiguous = before.ambiguous;
     now.used_alt = before.used_alt;
@@ -764,6 +770,247 @@ Fix refit_without_outliers(const std::vector<Bearing>& bearings, const Fix& robu
     if (now.outlier)
       now.weight = 0.0;
   }
+  return out;
+}
+
+// One bearing's whitened residual (theta - b - azi1(p)) / sigma with respect to the frame
+// offset (x, y) and, when the station has one, its offset b (rad).
+class BiasedBearingCost final : public ceres::CostFunction {
+ public:
+  BiasedBearingCost(const Bearing& bearing, double sigma_rad, const LatLon& centre, bool biased)
+      : bearing_(bearing), sigma_rad_(sigma_rad), centre_(centre), biased_(biased) {
+    set_num_residuals(1);
+    mutable_parameter_block_sizes()->push_back(2);
+    if (biased)
+      mutable_parameter_block_sizes()->push_back(1);
+  }
+
+  bool Evaluate(double const* const* parameters, double* residuals,
+                double** jacobians) const override {
+    const double x = parameters[0][0];
+    const double y = parameters[0][1];
+    const double bias_rad = biased_ ? parameters[1][0] : 0.0;
+    const LocalPoint p = local_to_geo(centre_, x, y);
+    const GeodesicLine12 g =
+        geodesic_inverse_azimuths({bearing_.lat_deg, bearing_.lon_deg}, p.point);
+    if (!(std::fabs(g.m12_m) > 0.0))
+      return false;
+    residuals[0] =
+        (angle_diff_deg(bearing_.azimuth_deg, g.azi1_deg) * kDegToRad - bias_rad) / sigma_rad_;
+    if (jacobians != nullptr) {
+      const FrameJacobian fj = frame_jacobian(x, y, p);
+      const double dazi_dE = std::cos(g.azi2_deg * kDegToRad) / g.m12_m;
+      const double dazi_dN = -std::sin(g.azi2_deg * kDegToRad) / g.m12_m;
+      if (jacobians[0] != nullptr) {
+        jacobians[0][0] = -(dazi_dE * fj.dE_dx + dazi_dN * fj.dN_dx) / sigma_rad_;
+        jacobians[0][1] = -(dazi_dE * fj.dE_dy + dazi_dN * fj.dN_dy) / sigma_rad_;
+      }
+      if (biased_ && jacobians[1] != nullptr)
+        jacobians[1][0] = -1.0 / sigma_rad_;
+    }
+    return true;
+  }
+
+ private:
+  const Bearing& bearing_;
+  double sigma_rad_;
+  LatLon centre_;
+  bool biased_;
+};
+
+// The Gaussian prior on a station offset: residual b / sigma_prior.
+class BiasPrior final : public ceres::SizedCostFunction<1, 1> {
+ public:
+  explicit BiasPrior(double sigma_rad) : sigma_rad_(sigma_rad) {}
+  bool Evaluate(double const* const* parameters, double* residuals,
+                double** jacobians) const override {
+    residuals[0] = parameters[0][0] / sigma_rad_;
+    if (jacobians != nullptr && jacobians[0] != nullptr)
+      jacobians[0][0] = 1.0 / sigma_rad_;
+    return true;
+  }
+
+ private:
+  double sigma_rad_;
+};
+
+// --estimate-station-bias: a constant offset per station, solved jointly with the position
+// from the trusted bearings (with the mirror choices made), a Gaussian prior on each offset.
+// A station's offset is identifiable only when its bearings come from places far enough
+// apart, seen from the fix, that rotating all of them cannot be mistaken for moving the
+// transmitter; the whole set must also separate offsets from position (the information
+// matrix without the prior, scaled to unit diagonal, must be well conditioned).
+Fix estimate_station_biases(const std::vector<Bearing>& bearings, const Fix& base,
+                            const SolveOptions& options) {
+  Fix out = base;
+  std::vector<Bearing> chosen = bearings;
+  for (const BearingFit& bf : base.bearings) {
+    if (bf.used_alt) {
+      chosen[bf.index].azimuth_deg = *bearings[bf.index].alt_azimuth_deg;
+      chosen[bf.index].sigma_deg =
+          bearings[bf.index].alt_sigma_deg.value_or(bearings[bf.index].sigma_deg);
+    }
+    chosen[bf.index].alt_azimuth_deg.reset();
+  }
+  // Which stations qualify: positions spread over at least 5% of the range (about 3 deg).
+  std::map<std::string, std::vector<std::size_t>> by_station;
+  for (const BearingFit& bf : base.bearings) {
+    if (!bf.outlier)
+      by_station[chosen[bf.index].station].push_back(bf.index);
+  }
+  std::map<std::string, int> bias_slot;
+  for (const auto& [station, idx] : by_station) {
+    const Bearing& first = chosen[idx.front()];
+    double spread = 0.0;
+    double range = 0.0;
+    for (std::size_t i : idx) {
+      spread = std::max(spread, geodesic_inverse({first.lat_deg, first.lon_deg},
+                                                 {chosen[i].lat_deg, chosen[i].lon_deg})
+                                    .s12_m);
+      range += geodesic_inverse({chosen[i].lat_deg, chosen[i].lon_deg}, base.position).s12_m /
+               static_cast<double>(idx.size());
+    }
+    if (idx.size() >= 2 && spread >= 0.05 * range) {
+      const int slot = static_cast<int>(bias_slot.size());
+      bias_slot[station] = slot;
+    } else {
+      out.bias_refusals.push_back(
+          "station '" + station + "': its trusted bearings come from places " +
+          std::to_string(static_cast<long>(std::lround(spread))) + " m apart, " +
+          std::to_string(static_cast<long>(std::lround(range))) +
+          " m from the fix: an offset cannot be told apart from the transmitter's position "
+          "(take its bearings from places further apart)");
+    }
+  }
+  if (bias_slot.empty())
+    return out;
+  const std::size_t nb = bias_slot.size();
+  const double prior_rad = options.station_bias_prior_deg * kDegToRad;
+  const Robustness rob = robustness(options);
+
+  LatLon centre = base.position;
+  std::vector<double> bias_rad(nb, 0.0);
+  bool converged = false;
+  int iterations = base.iterations;
+  for (int outer = 0; outer < options.max_iterations && !converged; ++outer) {
+    double xy[2] = {0.0, 0.0};
+    ceres::Problem problem;
+    for (const auto& [station, idx] : by_station) {
+      const auto slot = bias_slot.find(station);
+      for (std::size_t i : idx) {
+        const Bearing& b = chosen[i];
+        const double sigma =
+            effective_sigma_deg(b, geodesic_inverse({b.lat_deg, b.lon_deg}, centre)) * kDegToRad;
+        ceres::LossFunction* loss =
+            rob.loss == RobustLoss::none ? nullptr : new detail::RobustCeresLoss(rob.loss, rob.a);
+        if (slot != bias_slot.end()) {
+          problem.AddResidualBlock(new BiasedBearingCost(b, sigma, centre, true), loss, xy,
+                                   &bias_rad[static_cast<std::size_t>(slot->second)]);
+        } else {
+          problem.AddResidualBlock(new BiasedBearingCost(b, sigma, centre, false), loss, xy);
+        }
+      }
+    }
+    for (std::size_t k = 0; k < nb; ++k) {
+      problem.AddResidualBlock(new BiasPrior(prior_rad), nullptr, &bias_rad[k]);
+    }
+    ceres::Solver::Options so;
+    so.linear_solver_type = ceres::DENSE_QR;
+    so.max_num_iterations = 100;
+    so.function_tolerance = 1e-14;
+    so.gradient_tolerance = 1e-14;
+    so.parameter_tolerance = 1e-12;
+    so.logging_type = ceres::SILENT;
+    ceres::Solver::Summary summary;
+    ceres::Solve(so, &problem, &summary);
+    iterations += static_cast<int>(summary.iterations.size());
+    const bool usable = summary.IsSolutionUsable() || (summary.termination_type == ceres::FAILURE &&
+                                                       std::isfinite(summary.final_cost) &&
+                                                       summary.final_cost <= summary.initial_cost);
+    if (!usable)
+      return failed(FixStatus::not_converged, "the offset estimate failed: " + summary.message);
+    centre = local_to_geo(centre, xy[0], xy[1]).point;
+    converged = std::hypot(xy[0], xy[1]) < options.convergence_m;
+  }
+  if (!converged)
+    return failed(FixStatus::not_converged, "the offset estimate did not settle");
+
+  // Fits with the offsets removed, and the joint information (position + offsets).
+  std::vector<Bearing> corrected = chosen;
+  std::vector<int> slot_of(chosen.size(), -1);
+  for (std::size_t i = 0; i < chosen.size(); ++i) {
+    const auto slot = bias_slot.find(chosen[i].station);
+    if (slot == bias_slot.end())
+      continue;
+    slot_of[i] = slot->second;
+    corrected[i].azimuth_deg = wrap_deg360(
+        chosen[i].azimuth_deg - bias_rad[static_cast<std::size_t>(slot->second)] * kRadToDeg);
+  }
+  PointFit fit = fit_at(corrected, centre, options.num_threads, rob);
+  const std::size_t dim = 2 + nb;
+  Eigen::MatrixXd info =
+      Eigen::MatrixXd::Zero(static_cast<Eigen::Index>(dim), static_cast<Eigen::Index>(dim));
+  std::vector<bool> trusted(chosen.size(), false);
+  for (const BearingFit& bf : base.bearings)
+    trusted[bf.index] = !bf.outlier;
+  for (std::size_t i = 0; i < chosen.size(); ++i) {
+    if (!trusted[i])
+      continue;
+    const Bearing& b = corrected[i];
+    const GeodesicLine12 g = geodesic_inverse({b.lat_deg, b.lon_deg}, centre);
+    const double sigma = fit.fits[i].effective_sigma_deg * kDegToRad;
+    Eigen::VectorXd row = Eigen::VectorXd::Zero(static_cast<Eigen::Index>(dim));
+    row(0) = std::cos(g.azi2_deg * kDegToRad) / (g.m12_m * sigma);
+    row(1) = -std::sin(g.azi2_deg * kDegToRad) / (g.m12_m * sigma);
+    if (slot_of[i] >= 0)
+      row(2 + slot_of[i]) = 1.0 / sigma;
+    info += fit.fits[i].weight * row * row.transpose();
+  }
+  // Identifiability, before the prior: unit-diagonal scaling, then the condition number.
+  const Eigen::VectorXd d = info.diagonal().cwiseMax(1e-300).cwiseSqrt().cwiseInverse();
+  const Eigen::MatrixXd scaled = d.asDiagonal() * info * d.asDiagonal();
+  const Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> eig(scaled);
+  if (!(eig.eigenvalues()(0) > 1e-8 * eig.eigenvalues()(static_cast<Eigen::Index>(dim) - 1))) {
+    out.bias_refusals.push_back(
+        "the geometry cannot separate the station offsets from the transmitter's position: "
+        "no offsets were estimated");
+    return out;
+  }
+  for (std::size_t k = 0; k < nb; ++k) {
+    const auto e = static_cast<Eigen::Index>(2 + k);
+    info(e, e) += 1.0 / (prior_rad * prior_rad);
+  }
+  const Eigen::MatrixXd cov = info.inverse();
+
+  out.position = centre;
+  out.iterations = iterations;
+  out.covariance_en_m2 = {{{cov(0, 0), cov(0, 1)}, {cov(1, 0), cov(1, 1)}}};
+  out.station_biases.clear();
+  for (const auto& [station, slot] : bias_slot) {
+    const auto k = static_cast<std::size_t>(slot);
+    out.station_biases.push_back(
+        {station, bias_rad[k] * kRadToDeg, std::sqrt(cov(2 + slot, 2 + slot)) * kRadToDeg});
+  }
+  out.chi2 = 0.0;
+  int inliers = 0;
+  for (std::size_t i = 0; i < fit.fits.size(); ++i) {
+    BearingFit& bf = fit.fits[i];
+    const BearingFit& before = base.bearings[i];
+    bf.ambiguous = before.ambiguous;
+    bf.used_alt = before.used_alt;
+    bf.rejected_azimuth_deg = before.rejected_azimuth_deg;
+    bf.bias_deg =
+        slot_of[i] >= 0 ? bias_rad[static_cast<std::size_t>(slot_of[i])] * kRadToDeg : 0.0;
+    bf.outlier = !trusted[i];
+    if (bf.outlier) {
+      bf.weight = 0.0;
+    } else {
+      ++inliers;
+      out.chi2 += bf.normalized_residual * bf.normalized_residual;
+    }
+  }
+  out.dof = inliers - 2 - static_cast<int>(nb);
+  out.bearings = std::move(fit.fits);
   return out;
 }
 

@@ -124,6 +124,8 @@ std::string derivation_words(const Bearing& b, const BearingFit& bf) {
     out += fmt::format(", mirror {:.1f} rejected", bf.rejected_azimuth_deg);
   if (d.position_source != "file" && !d.position_source.empty())
     out += ", pos from track";
+  if (bf.bias_deg != 0.0)
+    out += fmt::format(", offset {:+.2f} removed", bf.bias_deg);
   return out;
 }
 
@@ -240,6 +242,18 @@ std::string text_summary(const RunInfo& run, const std::vector<Bearing>& bearing
       }
       out += "Robust     " + robust_words + "\n";
     }
+    for (const StationBias& sb : f.station_biases) {
+      out +=
+          fmt::format("Offset     {}: {:+.2f} +- {:.2f} deg (1 sigma), removed from its bearings\n",
+                      sb.station, sb.bias_deg, sb.sigma_deg);
+    }
+    for (const std::string& why : f.bias_refusals) {
+      std::string refusal = wrap_words("no offset for " + why, 78);
+      for (std::size_t k = 0; (k = refusal.find('\n', k)) != std::string::npos; k += 12) {
+        refusal.replace(k, 1, "\n           ");
+      }
+      out += "Offset     " + refusal + "\n";
+    }
     if (u.sigmas_too_small) {
       out += "Ellipses   (scaled by the residuals, F distribution)\n";
       for (const Ellipse& e : u.scaled_ellipses)
@@ -328,6 +342,12 @@ std::string json_summary(const RunInfo& run, const std::vector<Bearing>& bearing
                      {"moving_suspected", r.motion.moving_suspected},
                      {"strongest_station", r.motion.strongest_station},
                      {"strongest_drift_deg_per_min", r.motion.strongest_drift_deg_per_min}};
+      j["station_biases"] = nlohmann::ordered_json::array();
+      for (const StationBias& sb : f.station_biases) {
+        j["station_biases"].push_back(
+            {{"station", sb.station}, {"bias_deg", sb.bias_deg}, {"sigma_deg", sb.sigma_deg}});
+      }
+      j["bias_refusals"] = f.bias_refusals;
       j["iterations"] = f.iterations;
       j["bearings"] = nlohmann::ordered_json::array();
       for (const BearingFit& bf : f.bearings) {
@@ -375,6 +395,7 @@ std::string json_summary(const RunInfo& run, const std::vector<Bearing>& bearing
         jb["residual_deg"] = bf.residual_deg;
         jb["normalized_residual"] = bf.normalized_residual;
         jb["range_m"] = bf.range_m;
+        jb["bias_deg"] = bf.bias_deg;
         jb["weight"] = bf.weight;
         jb["outlier"] = bf.outlier;
         j["bearings"].push_back(jb);

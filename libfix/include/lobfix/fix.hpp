@@ -37,11 +37,21 @@ struct BearingFit {
   bool used_alt = false;
   /// The candidate not used (true azimuth), when ambiguous.
   double rejected_azimuth_deg = 0;
+  /// The station offset removed from this bearing before its residual (deg), 0 if none.
+  double bias_deg = 0;
   /// Weight rho'(z^2) the robust loss gave the bearing at the fix, in [0, 1]; 1 for least
   /// squares, 0 for a bearing excluded as an outlier.
   double weight = 1;
   /// The robust fit distrusts this bearing (|normalised residual| > outlier_z).
   bool outlier = false;
+};
+
+/// A constant bearing offset estimated for one station (a misaligned mount or compass):
+/// its bearings read `bias_deg` clockwise of the truth.
+struct StationBias {
+  std::string station;
+  double bias_deg = 0.0;
+  double sigma_deg = 0.0;  ///< 1-sigma, prior included
 };
 
 /// A position estimate with its covariance, or a status saying why there is none.
@@ -55,6 +65,11 @@ struct Fix {
   double chi2 = 0.0;  ///< sum of squared normalised residuals
   int dof = 0;        ///< degrees of freedom, n - 2 (with a robust loss: inliers - 2)
   int outliers = 0;   ///< bearings the robust fit flagged (chi2 and dof leave them out)
+  /// Station offsets, when they were asked for and the geometry can tell them apart from the
+  /// position (the position's covariance then includes their uncertainty).
+  std::vector<StationBias> station_biases;
+  /// Why an offset was not estimated for a station (one line each), when asked for.
+  std::vector<std::string> bias_refusals;
   std::vector<BearingFit> bearings;  ///< one per bearing used, in input order
   int iterations = 0;                ///< solver iterations (all re-centrings together)
   double start_distance_m = 0.0;     ///< distance from the start point to the fix

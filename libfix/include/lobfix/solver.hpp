@@ -43,6 +43,9 @@ struct SolveOptions {
   double outlier_z = 3.0;
   /// After a robust fit, solve again by least squares without the outliers.
   bool exclude_outliers = false;
+  /// Estimate a constant bearing offset per station, with a Gaussian prior of this 1-sigma
+  /// (deg), where the geometry makes it identifiable; 0 means no offsets.
+  double station_bias_prior_deg = 0.0;
 
   /// Empty when valid, else the reason.
   std::string validate() const;
