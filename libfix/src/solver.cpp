@@ -454,7 +454,27 @@ Fix solve_fix(const std::vector<Bearing>& bearings, const SolveOptions& options)
     fix = refit_without_outliers(bearings, fix, options);
   }
   if (fix.ok() && options.station_bias_prior_deg > 0.0) {
-    fix = estimate_station_biases(bearings, fix, options);
+    // Verdicts are remade once the offsets are removed (a misaligned station's bearings can
+    // look wild before), and the offsets estimated again, until the verdicts settle.
+    Fix base = fix;
+    Fix with_offsets = estimate_station_biases(bearings, base, options);
+    for (int round = 0; round < 3 && with_offsets.ok() && options.loss != RobustLoss::none;
+         ++round) {
+      bool changed = false;
+      for (std::size_t i = 0; i < base.bearings.size(); ++i) {
+        const bool out =
+            std::fabs(with_offsets.bearings[i].normalized_residual) > options.outlier_z;
+        changed = changed || out != base.bearings[i].outlier;
+        base.bearings[i].outlier = out;
+      }
+      if (!changed)
+        break;
+      base.outliers =
+          static_cast<int>(std::count_if(base.bearings.begin(), base.bearings.end(),
+                                         [](const BearingFit& b) { return b.outlier; }));
+      with_offsets = estimate_station_biases(bearings, base, options);
+    }
+    fix = with_offsets;
   }
   return fix;
 }
@@ -875,11 +895,16 @@ Fix estimate_station_biases(const std::vector<Bearing>& bearings, const Fix& bas
       bias_slot[station] = slot;
     } else {
       out.bias_refusals.push_back(
-          "station '" + station + "': its trusted bearings come from places " +
-          std::to_string(static_cast<long>(std::lround(spread))) + " m apart, " +
-          std::to_string(static_cast<long>(std::lround(range))) +
-          " m from the fix: an offset cannot be told apart from the transmitter's position "
-          "(take its bearings from places further apart)");
+          idx.size() < 2
+              ? "station '" + station +
+                    "': it has only one trusted bearing, so an offset cannot be told apart from "
+                    "the transmitter's position"
+              : "station '" + station + "': its trusted bearings come from places " +
+                    std::to_string(static_cast<long>(std::lround(spread))) + " m apart, " +
+                    std::to_string(static_cast<long>(std::lround(range))) +
+                    " m from the fix: an offset cannot be told apart from the transmitter's "
+                    "position "
+                    "(take its bearings from places further apart)");
     }
   }
   if (bias_slot.empty())
