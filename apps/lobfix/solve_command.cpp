@@ -19,6 +19,7 @@
 #include "lobfix/summary.hpp"
 #include "lobfix/track.hpp"
 #include "lobfix/uncertainty.hpp"
+#include "lobfix/windows.hpp"
 
 namespace lobfix_app {
 
@@ -128,6 +129,12 @@ CLI::App* add_solve_command(CLI::App& app, SolveArgs& args) {
                   "1-sigma of the prior on each station offset")
       ->capture_default_str()
       ->check(CLI::Range(0.1, 90.0));
+  cmd->add_option("--window", args.window,
+                  "solve per time window, e.g. 10m, 90s, 1h: a sequence of fixes, drawn as a "
+                  "track (for a transmitter that moves)");
+  cmd->add_option("--window-step", args.window_step,
+                  "start a window this often (default: the window's length; shorter: sliding, "
+                  "overlapping windows)");
   cmd->add_flag("--skip-bad", args.skip_bad,
                 "skip rows with bad cells (each is listed on stderr) instead of failing");
   return cmd;
@@ -232,14 +239,47 @@ int run_solve(const SolveArgs& args) {
   uncertainty_options.probabilities = args.confidence;
   uncertainty_options.alpha = args.alpha;
 
+  std::optional<double> window_s;
+  std::optional<double> step_s;
+  if (!args.window.empty()) {
+    window_s = parse_duration_s(args.window);
+    step_s = args.window_step.empty() ? window_s : parse_duration_s(args.window_step);
+    if (!window_s || !step_s) {
+      std::cerr << "lobfix: --window and --window-step take durations like 10m, 90s or 1h\n";
+      return kExitUsage;
+    }
+  } else if (!args.window_step.empty()) {
+    std::cerr << "lobfix: --window-step needs --window\n";
+    return kExitUsage;
+  }
+
   std::vector<FixResult> results;
-  try {
-    for (Fix& fix : solve_by_signal(bearings, solve_options)) {
+  const auto add_results = [&](std::vector<Fix> fixes) {
+    for (Fix& fix : fixes) {
       FixResult r;
       r.uncertainty = describe_uncertainty(fix, uncertainty_options);
       r.motion = test_for_motion(fix, bearings, args.alpha);
       r.fix = std::move(fix);
       results.push_back(std::move(r));
+    }
+  };
+  try {
+    if (!window_s) {
+      add_results(solve_by_signal(bearings, solve_options));
+    } else {
+      for (const TimeWindow& w : make_windows(bearings, *window_s, *step_s)) {
+        std::vector<Bearing> subset;
+        for (std::size_t i : w.indices)
+          subset.push_back(bearings[i]);
+        std::vector<Fix> fixes = solve_by_signal(subset, solve_options);
+        for (Fix& f : fixes) {
+          for (BearingFit& bf : f.bearings)
+            bf.index = w.indices[bf.index];
+          f.window_start_unix_ns = w.start_unix_ns;
+          f.window_end_unix_ns = w.end_unix_ns;
+        }
+        add_results(std::move(fixes));
+      }
     }
   } catch (const InputError& e) {
     std::cerr << "lobfix: " << e.diagnostic().reason << "\n";

@@ -33,6 +33,8 @@ struct SolveArgs {
   bool exclude_outliers = false;
   bool estimate_station_bias = false;
   double bias_prior_deg = 10.0;
+  std::string window;
+  std::string window_step;
 };
 
 /// Register the subcommand; `args` must outlive the parse.

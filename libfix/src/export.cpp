@@ -9,6 +9,7 @@
 // directory, are flushed to disk, and the temporary is renamed over the target.
 // Fields, styles and their meaning: docs/outputs.md.
 #include "lobfix/export.hpp"
+#include "lobfix/time.hpp"
 
 #include <cpl_conv.h>
 #include <cpl_error.h>
@@ -136,8 +137,9 @@ const FieldDef kFields[] = {
     {"outliers", OFTInteger},
 };
 
-enum class Group { stations, rays, fixes, ellipses };
-constexpr Group kGroups[] = {Group::stations, Group::rays, Group::fixes, Group::ellipses};
+enum class Group { stations, rays, fixes, ellipses, tracks };
+constexpr Group kGroups[] = {Group::stations, Group::rays, Group::fixes, Group::ellipses,
+                             Group::tracks};
 
 const char* group_name(Group g) {
   switch (g) {
@@ -149,6 +151,8 @@ const char* group_name(Group g) {
       return "fixes";
     case Group::ellipses:
       return "ellipses";
+    case Group::tracks:
+      return "tracks";
   }
   return "";
 }
@@ -168,6 +172,8 @@ std::vector<const char*> group_fields(Group g) {
       return {"kind", "signal", "lat", "lon", "cep_m", "chi2", "dof", "p_value", "outliers"};
     case Group::ellipses:
       return {"kind", "signal", "probability", "semi_major_m", "semi_minor_m", "orientation_deg"};
+    case Group::tracks:
+      return {"kind", "signal"};
   }
   return {};
 }
@@ -462,6 +468,10 @@ MapContent build_content(const std::vector<Bearing>& bearings,
                 {"outliers", fx.outliers}};
     f.geometry = point_geometry(fx.position);
     f.name = fx.signal.empty() ? std::string("fix") : "fix " + fx.signal;
+    if (fx.has_window()) {
+      f.name += " " + format_iso8601_utc(fx.window_start_unix_ns).substr(11, 5) + "-" +
+                format_iso8601_utc(fx.window_end_unix_ns).substr(11, 5);
+    }
     f.description = "Fix of signal " + label + " at " + position_text(fx.position) + ". ";
     f.description += "The transmitter is within " + distance_text(u.cep_m) +
                      " of it with 50% probability (CEP), if the stated bearing sigmas hold. ";
@@ -523,6 +533,34 @@ MapContent build_content(const std::vector<Bearing>& bearings,
     };
     add_ellipses(u.ellipses, false);
     add_ellipses(u.scaled_ellipses, true);
+  }
+  // Tracks: the fixes of one signal solved per time window, joined in time order.
+  std::map<std::string, std::vector<const Fix*>> windowed;
+  for (const FixResult& r : results) {
+    if (has_position(r.fix) && r.fix.has_window())
+      windowed[r.fix.signal].push_back(&r.fix);
+  }
+  for (auto& [signal, fixes] : windowed) {
+    if (fixes.size() < 2)
+      continue;
+    std::stable_sort(fixes.begin(), fixes.end(), [](const Fix* a, const Fix* b) {
+      return a->window_start_unix_ns < b->window_start_unix_ns;
+    });
+    Path path;
+    for (const Fix* fx : fixes)
+      path.push_back(fx->position);
+    MapFeature f;
+    f.group = Group::tracks;
+    f.fields = {{"kind", std::string("track")}, {"signal", signal}};
+    f.geometry = line_geometry(detail::unroll_short_way(path));
+    f.name = "track " + signal_label(signal);
+    f.description = strf("Fixes of signal %s in %zu time windows, in time order, from %s to %s.",
+                         signal_label(signal).c_str(), fixes.size(),
+                         format_iso8601_utc(fixes.front()->window_start_unix_ns).c_str(),
+                         format_iso8601_utc(fixes.back()->window_end_unix_ns).c_str());
+    const std::size_t colour = colour_index(signal);
+    f.style = add_style(strf("track-%zu", colour), strf("PEN(c:#%sFF,w:3px)", kPalette[colour]));
+    content.features.push_back(std::move(f));
   }
   return content;
 }
@@ -807,6 +845,12 @@ void write_kml(const std::string& path, const std::vector<Bearing>& bearings,
     }
     ds.SetStyleTable(&table);
     for (Group g : kGroups) {
+      // The tracks folder appears only when there are windowed fixes to join.
+      if (g == Group::tracks &&
+          std::none_of(content.features.begin(), content.features.end(),
+                       [](const MapFeature& mf) { return mf.group == Group::tracks; })) {
+        continue;
+      }
       const bool points = g == Group::stations || g == Group::fixes;
       CPLStringList layer_options;
       layer_options.SetNameValue("FOLDER", "YES");  // a <Folder>, not a nested <Document>

@@ -10,6 +10,7 @@
 #include <string>
 
 #include "lobfix/geodesy.hpp"
+#include "lobfix/time.hpp"
 
 namespace lobfix {
 
@@ -155,8 +156,63 @@ const char* safety_note() {
          "Local regulations, licensing and the lead agency's procedures come first.";
 }
 
+namespace {
+
+// One line per window and signal, for a run solved per time window.
+std::string windows_table(const std::vector<Bearing>& bearings,
+                          const std::vector<FixResult>& results) {
+  std::string out = "\nFixes per time window (UTC):\n";
+  out += fmt::format("{:<13} {:<12} {:>4} {:>11} {:>12} {:<18} {:>17} {:>4}\n", "window", "signal",
+                     "n", "lat", "lon", "MGRS", "95% semi-axes", "out");
+  for (const FixResult& r : results) {
+    const Fix& f = r.fix;
+    const std::string window = format_iso8601_utc(f.window_start_unix_ns).substr(11, 5) + "-" +
+                               format_iso8601_utc(f.window_end_unix_ns).substr(11, 5);
+    std::size_t n = 0;
+    for (const Bearing& b : bearings) {
+      n += b.signal == f.signal && b.time_unix_ns >= f.window_start_unix_ns &&
+                   b.time_unix_ns < f.window_end_unix_ns
+               ? 1
+               : 0;
+    }
+    const std::string signal = f.signal.empty() ? std::string("-") : f.signal;
+    if (!f.ok()) {
+      out +=
+          fmt::format("{:<13} {:<12} {:>4}  no fix: {}\n", window, signal, n, to_string(f.status));
+      continue;
+    }
+    std::string axes = "-";
+    for (const Ellipse& e : r.uncertainty.ellipses) {
+      if (std::fabs(e.probability - 0.95) < 1e-9)
+        axes = distance_text(e.semi_major_m) + " x " + distance_text(e.semi_minor_m);
+    }
+    out += fmt::format("{:<13} {:<12} {:>4} {:>11.6f} {:>12.6f} {:<18} {:>17} {:>4}\n", window,
+                       signal, n, f.position.lat_deg, f.position.lon_deg,
+                       spaced_mgrs(grid_reference(f.position).mgrs), axes, f.outliers);
+  }
+  return out;
+}
+
+}  // namespace
+
 std::string text_summary(const RunInfo& run, const std::vector<Bearing>& bearings,
                          const std::vector<FixResult>& results) {
+  if (!results.empty() && results.front().fix.has_window()) {
+    std::size_t used = 0;
+    for (const FixResult& r : results)
+      used += r.fix.bearings.size();
+    std::string out = fmt::format(
+        "lobfix {}: {} rows read from {}, {} converted to true bearings, solved in "
+        "{} time windows\n",
+        run.version, run.rows_read, run.input, bearings.size(), results.size());
+    out += windows_table(bearings, results);
+    out +=
+        "\nA transmitter that moves gives one fix per window; each fix is an average over "
+        "its window.\n\n";
+    out += wrap_words(safety_note(), 90);
+    out += "\n";
+    return out;
+  }
   std::string out;
   std::size_t used = 0;
   for (const FixResult& r : results)
@@ -304,6 +360,10 @@ std::string json_summary(const RunInfo& run, const std::vector<Bearing>& bearing
     const Uncertainty& u = r.uncertainty;
     nlohmann::ordered_json j;
     j["signal"] = f.signal;
+    if (f.has_window()) {
+      j["window_start"] = format_iso8601_utc(f.window_start_unix_ns);
+      j["window_end"] = format_iso8601_utc(f.window_end_unix_ns);
+    }
     j["status"] = to_string(f.status);
     j["message"] = f.message;
     if (f.ok()) {

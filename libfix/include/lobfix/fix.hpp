@@ -3,6 +3,7 @@
 
 #include <array>
 #include <cstddef>
+#include <cstdint>
 #include <string>
 #include <vector>
 
@@ -72,7 +73,11 @@ struct Fix {
   std::vector<std::string> bias_refusals;
   std::vector<BearingFit> bearings;  ///< one per bearing used, in input order
   int iterations = 0;                ///< solver iterations (all re-centrings together)
-  double start_distance_m = 0.0;     ///< distance from the start point to the fix
+  /// When solved per time window (windows.hpp): the window [start, end), else both 0.
+  std::int64_t window_start_unix_ns = 0;
+  std::int64_t window_end_unix_ns = 0;
+  bool has_window() const noexcept { return window_end_unix_ns > window_start_unix_ns; }
+  double start_distance_m = 0.0;  ///< distance from the start point to the fix
 
   bool ok() const noexcept { return status == FixStatus::ok; }
 };
