@@ -190,3 +190,56 @@ TEST_CASE("without wild bearings the robust fix is close to least squares") {
   for (const BearingFit& bf : r.bearings)
     CHECK(bf.weight > 0.0);
 }
+
+TEST_CASE("mirror candidates and wild bearings together: resolved jointly by the robust fit") {
+  // Every bearing comes as a pair mirrored about a random array axis, and 2 of 20 are wild:
+  // the robust fit with its consensus start must still pick the right candidate for the good
+  // bearings (at least 99%) and land within 2x the bound in at least 95% of trials.
+  const Scenario sc = four_stations();
+  std::mt19937_64 rng(4711);
+  std::normal_distribution<double> noise(0.0, 2.0);
+  std::uniform_real_distribution<double> uni(0.0, 360.0);
+  std::uniform_int_distribution<int> pick(0, 19);
+  SolveOptions o;
+  o.loss = RobustLoss::andrews;
+  const int trials = 200;
+  int good_fix = 0, right = 0, total = 0;
+  for (int t = 0; t < trials; ++t) {
+    std::vector<Bearing> b = sc.clean;
+    std::vector<bool> wild(20, false), truth_alt(20, false);
+    for (Bearing& x : b)
+      x.azimuth_deg = wrap_deg360(x.azimuth_deg + noise(rng));
+    for (int k = 0; k < 2;) {
+      const int i = pick(rng);
+      if (wild[i])
+        continue;
+      wild[i] = true;
+      b[i].azimuth_deg = uni(rng);
+      ++k;
+    }
+    for (std::size_t i = 0; i < b.size(); ++i) {
+      double axis = 0.0;
+      do {
+        axis = uni(rng);
+      } while (std::fabs(std::sin((b[i].azimuth_deg - axis) * M_PI / 180.0)) < std::sin(0.26));
+      const double mirror = wrap_deg360(2.0 * axis - b[i].azimuth_deg);
+      truth_alt[i] = uni(rng) < 180.0;
+      b[i].alt_azimuth_deg = truth_alt[i] ? b[i].azimuth_deg : mirror;
+      b[i].azimuth_deg = truth_alt[i] ? mirror : b[i].azimuth_deg;
+      b[i].alt_sigma_deg = b[i].sigma_deg;
+    }
+    const Fix f = solve_fix(b, o);
+    REQUIRE(f.ok());
+    good_fix += miss_m(f.position, sc.truth) <= 2.0 * sc.crb_rms_m ? 1 : 0;
+    for (const BearingFit& bf : f.bearings) {
+      if (wild[bf.index])
+        continue;
+      ++total;
+      right += bf.used_alt == truth_alt[bf.index] ? 1 : 0;
+    }
+  }
+  MESSAGE("mirror + wild: right candidate " << right << "/" << total << ", within 2x CRB "
+                                            << good_fix << "/" << trials);
+  CHECK(right >= 0.99 * total);
+  CHECK(good_fix >= 0.95 * trials);
+}
