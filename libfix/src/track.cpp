@@ -163,7 +163,16 @@ std::optional<std::int64_t> gdal_time_ns(const OGRFeature& feature, int index,
     return std::nullopt;
   }
   const auto ms = static_cast<std::int64_t>(std::llround(static_cast<double>(second) * 1000.0));
-  return *minute_ns + ms * kNsPerMs;
+  // The minute may fit in 64-bit nanoseconds while its seconds do not (after 23:47:16.854775807Z
+  // on 2262-04-11).
+  std::int64_t time_ns = 0;
+  if (__builtin_add_overflow(*minute_ns, ms * kNsPerMs, &time_ns)) {
+    reason =
+        "has a time that is not valid: it is after 2262-04-11T23:47:16.854775807Z, the last time "
+        "that 64-bit nanoseconds hold";
+    return std::nullopt;
+  }
+  return time_ns;
 }
 
 }  // namespace
