@@ -248,7 +248,25 @@ struct State {
   /// time belongs to is the one that puts it within 12 h of this.
   std::optional<std::int64_t> reference_ns;
   int invalid_fixes = 0;
+  /// GGAs read before any valid RMC (many receivers send GGA first in each epoch): dated by
+  /// the first valid RMC after them, or reported at the end of the file if none comes.
+  struct PendingGga {
+    std::int64_t time_of_day_ns = 0;
+    Fix fix;
+  };
+  std::vector<PendingGga> pending;
 };
+
+// The day that puts a time of day within 12 h of the reference (both in ns; times from 1980
+// on, so positive).
+std::int64_t nearest_day(std::int64_t reference, std::int64_t time_of_day_ns) {
+  std::int64_t t = reference - reference % kNsPerDay + time_of_day_ns;
+  if (t - reference < -kHalfDayNs)
+    t += kNsPerDay;
+  else if (t - reference > kHalfDayNs)
+    t -= kNsPerDay;
+  return t;
+}
 
 void read_rmc(const std::vector<std::string_view>& f, int line, State& state) {
   if (f.size() < 10) {
@@ -295,6 +313,12 @@ void read_rmc(const std::vector<std::string_view>& f, int line, State& state) {
   fix.line = line;
   state.reference_ns = fix.time_unix_ns;
   state.fixes.push_back(fix);
+  // The GGAs that came before the first date take it now.
+  for (State::PendingGga& g : state.pending) {
+    g.fix.time_unix_ns = nearest_day(fix.time_unix_ns, g.time_of_day_ns);
+    state.fixes.push_back(g.fix);
+  }
+  state.pending.clear();
 }
 
 void read_gga(const std::vector<std::string_view>& f, int line, State& state) {
@@ -342,19 +366,19 @@ void read_gga(const std::vector<std::string_view>& f, int line, State& state) {
     }
   }
   if (!state.reference_ns) {
-    state.report.error(line, "time",
-                       "GGA has no date yet: no valid RMC sentence before it gives one");
+    State::PendingGga g;
+    g.time_of_day_ns = *tod;
+    g.fix.position = *position;
+    g.fix.alt_m = alt_m;
+    g.fix.line = line;
+    g.fix.from_gga = true;
+    state.pending.push_back(g);
     return;
   }
   // The day that puts this time of day nearest the latest dated fix: a GGA more than 12 h
   // before it in the clock belongs to the next day (midnight passed), one more than 12 h
   // after it to the day before.
-  const std::int64_t reference = *state.reference_ns;
-  std::int64_t t = reference - reference % kNsPerDay + *tod;  // times from 1980: positive
-  if (t - reference < -kHalfDayNs)
-    t += kNsPerDay;
-  else if (t - reference > kHalfDayNs)
-    t -= kNsPerDay;
+  const std::int64_t t = nearest_day(*state.reference_ns, *tod);
   Fix fix;
   fix.time_unix_ns = t;
   fix.position = *position;
@@ -379,7 +403,7 @@ NmeaReadResult read_nmea_track(const std::string& path, const std::string& stati
   result.track.station = station;
   result.track.file = path;
   const Reporter report(path, result.errors);
-  State state{report, {}, std::nullopt, 0};
+  State state{report, {}, std::nullopt, 0, {}};
 
   std::string text;
   int line = 0;
@@ -434,6 +458,10 @@ NmeaReadResult read_nmea_track(const std::string& path, const std::string& stati
       read_gga(fields, line, state);
   }
   result.invalid_fixes = state.invalid_fixes;
+  for (const State::PendingGga& g : state.pending) {
+    report.error(g.fix.line, "time",
+                 "GGA has no date: no valid RMC sentence in the file gives one");
+  }
 
   // One point per time: an RMC and a GGA at the same time are one fix (the GGA's position
   // and altitude); a second RMC or GGA at a time already taken is an error.

@@ -519,9 +519,9 @@ TEST_CASE("NMEA checksum is the XOR of the bytes between $ and *") {
                 "$" + gga + "*" + hex2(x_gga) + "\n\n$" + rmc + "*" + hex2(wrong) + "\n");
   r = lobfix::read_nmea_track(bad, "vehicle-1");
   REQUIRE(r.errors.size() == 2);
-  // The GGA came first, with no RMC date yet.
+  // The GGA came first and no valid RMC follows to date it.
   CHECK(r.errors[0].to_string() ==
-        bad + ":1: GGA has no date yet: no valid RMC sentence before it gives one");
+        bad + ":1: GGA has no date: no valid RMC sentence in the file gives one");
   CHECK(r.errors[1].to_string() == bad + ":3: NMEA checksum " + hex2(wrong) +
                                        " does not match the sentence (computed " + hex2(x_rmc) +
                                        ")");
@@ -615,25 +615,26 @@ TEST_CASE("NMEA: two-digit years 1980-2079, fractional seconds") {
 TEST_CASE("NMEA: bad and missing checksums and other errors, each file:line") {
   const std::string path = data_path("tracks/vehicle_errors.nmea");
   const auto r = lobfix::read_nmea_track(path, "vehicle-1");
-  REQUIRE(r.errors.size() == 6);
+  // Line 1 is a GGA before any RMC: the first valid RMC (line 4, 1 June 2026) dates it.
+  REQUIRE(r.errors.size() == 5);
   CHECK(r.errors[0].to_string() ==
-        path + ":1: GGA has no date yet: no valid RMC sentence before it gives one");
-  CHECK(r.errors[1].to_string() ==
         path + ":2: NMEA checksum 6B does not match the sentence (computed 7E)");
-  CHECK(r.errors[2].to_string() ==
+  CHECK(r.errors[1].to_string() ==
         path +
             ":3: NMEA sentence has no checksum (*hh at its end): a sentence without one cannot "
             "be verified and is not used");
-  CHECK(r.errors[3].to_string() == path + ":5: not an NMEA sentence: it does not start with '$'");
-  CHECK(r.errors[4].to_string() == path + ":6: RMC latitude '31X2.0040' is not ddmm.mmmm");
-  CHECK(r.errors[5].line == 8);
-  CHECK(r.errors[5].reason.rfind("RMC date '310226' is not a valid date: ", 0) == 0);
-  REQUIRE(r.track.points.size() == 2);
-  CHECK(r.track.points[0].source.line == 4);
-  CHECK(r.track.points[1].source.line == 7);
-  CHECK(r.track.points[1].time_unix_ns == ns("2026-06-01T10:15:40Z"));
+  CHECK(r.errors[2].to_string() == path + ":5: not an NMEA sentence: it does not start with '$'");
+  CHECK(r.errors[3].to_string() == path + ":6: RMC latitude '31X2.0040' is not ddmm.mmmm");
+  CHECK(r.errors[4].line == 8);
+  CHECK(r.errors[4].reason.rfind("RMC date '310226' is not a valid date: ", 0) == 0);
+  REQUIRE(r.track.points.size() == 3);
+  CHECK(r.track.points[0].source.line == 1);
+  CHECK(r.track.points[0].time_unix_ns == ns("2026-06-01T10:15:00Z"));
+  CHECK(r.track.points[1].source.line == 4);
+  CHECK(r.track.points[2].source.line == 7);
+  CHECK(r.track.points[2].time_unix_ns == ns("2026-06-01T10:15:40Z"));
   CHECK(r.sentences_read == 8);
-  CHECK(r.sentences_used == 2);
+  CHECK(r.sentences_used == 3);
 
   // A second fix of one type at the same time is an error; the first is kept.
   const std::string dup = write_tmp(
@@ -747,4 +748,21 @@ TEST_CASE("GPX: bad points are InputErrors naming the point") {
   CHECK_THROWS_WITH_AS(lobfix::read_gpx_tracks(empty),
                        (empty + ": has no track points (<trk><trkseg><trkpt>)").c_str(),
                        lobfix::InputError);
+}
+
+TEST_CASE("NMEA: a receiver that sends GGA before RMC in each epoch loses no fix") {
+  // Many receivers send $--GGA first in each epoch [common practice]: the GGAs before the
+  // first RMC take its date (looking ahead), so the first epoch is kept.
+  const std::string path = write_tmp(
+      "track_gga_first.nmea",
+      sentence("GPGGA,235958.00,3112.0000,S,14630.0000,E,1,08,0.9,212.3,M,20.1,M,,") + "\n" +
+          sentence("GPGGA,235959.00,3112.0005,S,14630.0005,E,1,08,0.9,212.3,M,20.1,M,,") + "\n" +
+          sentence("GPRMC,000000.00,A,3112.0010,S,14630.0010,E,1.2,80.0,010626,,") + "\n");
+  const auto r = lobfix::read_nmea_track(path, "vehicle-1");
+  CHECK(r.errors.empty());
+  REQUIRE(r.track.points.size() == 3);
+  // The RMC is 1 June 00:00:00; the GGAs before it fall on 31 May (within 12 h of it).
+  CHECK(r.track.points[0].time_unix_ns == ns("2026-05-31T23:59:58Z"));
+  CHECK(r.track.points[1].time_unix_ns == ns("2026-05-31T23:59:59Z"));
+  CHECK(r.track.points[2].time_unix_ns == ns("2026-06-01T00:00:00Z"));
 }
