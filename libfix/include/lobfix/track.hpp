@@ -58,7 +58,8 @@ std::vector<Track> read_gpx_tracks(const std::string& path, const std::string& s
 /// of other types are ignored; invalid fixes (RMC status V or mode N/E/M/S, GGA quality 0 or
 /// 6/7/8) are skipped and counted. GGA carries no date: it takes the date of the latest
 /// valid RMC before it in the file, carried across midnight by the nearest day within 12 h
-/// of the latest dated fix; a GGA before any valid RMC is an error ("no date yet"). An RMC
+/// of the latest dated fix; GGAs before the first valid RMC take its date, and in a file
+/// with no valid RMC each GGA is an error ("no date"). An RMC
 /// and a GGA at the same time give one point (the GGA's position and altitude). RMC years
 /// are two digits: 80..99 are 1980..1999, 00..79 are 2000..2079.
 struct NmeaReadResult {
