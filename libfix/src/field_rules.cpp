@@ -21,6 +21,44 @@
 namespace lobfix::detail {
 namespace {
 
+// Well-formed UTF-8 (RFC 3629): no overlong forms, no surrogates, nothing above U+10FFFF.
+bool valid_utf8(std::string_view text) {
+  std::size_t i = 0;
+  while (i < text.size()) {
+    const auto c = static_cast<unsigned char>(text[i]);
+    std::size_t n = 0;
+    std::uint32_t cp = 0;
+    if (c < 0x80) {
+      ++i;
+      continue;
+    } else if ((c & 0xE0) == 0xC0) {
+      n = 1;
+      cp = c & 0x1FU;
+    } else if ((c & 0xF0) == 0xE0) {
+      n = 2;
+      cp = c & 0x0FU;
+    } else if ((c & 0xF8) == 0xF0) {
+      n = 3;
+      cp = c & 0x07U;
+    } else {
+      return false;
+    }
+    if (i + n >= text.size())
+      return false;  // the sequence runs past the end
+    for (std::size_t k = 1; k <= n; ++k) {
+      const auto d = static_cast<unsigned char>(text[i + k]);
+      if ((d & 0xC0) != 0x80)
+        return false;
+      cp = (cp << 6) | (d & 0x3FU);
+    }
+    const std::uint32_t min[] = {0, 0x80, 0x800, 0x10000};
+    if (cp < min[n] || cp > 0x10FFFF || (cp >= 0xD800 && cp <= 0xDFFF))
+      return false;
+    i += n + 1;
+  }
+  return true;
+}
+
 std::string shortest(double v) {
   char buf[32];
   const auto res = std::to_chars(buf, buf + sizeof buf, v);
@@ -201,7 +239,7 @@ std::optional<std::int64_t> parse_unix_seconds(std::string_view text, std::strin
   if (i < s.size()) {
     ++i;  // 'e'
     bool exponent_negative = false;
-    if (s[i] == '+' || s[i] == '-') {
+    if (i < s.size() && (s[i] == '+' || s[i] == '-')) {
       exponent_negative = s[i] == '-';
       ++i;
     }
@@ -383,10 +421,16 @@ void RowBuilder::cell(Field f, std::string_view text, int column) {
       return;
     }
     case Field::station:
-      obs_.station = std::string(text);
-      return;
     case Field::signal:
-      obs_.signal = std::string(text);
+      // Names travel into JSON, GeoJSON and KML, which are UTF-8: other bytes are refused
+      // here, where the row and column can be named.
+      if (!valid_utf8(text)) {
+        error(f,
+              std::string(field_name(f)) +
+                  " is not UTF-8 text (save the file as UTF-8; it may be in a legacy code page)");
+        return;
+      }
+      (f == Field::station ? obs_.station : obs_.signal) = std::string(text);
       return;
     case Field::reference: {
       const std::string lower = lower_ascii(text);

@@ -187,7 +187,7 @@ Header read_header(CsvTokenizer& tokenizer, const std::string& file_name,
           file_name, header.line, column, "",
           "header column " + std::to_string(column) + " has text after its closing quote"});
     }
-    header.names.push_back(std::string(f.text));
+    header.names.emplace_back(f.text);
     names.push_back(detail::lower_ascii(f.text));
     const std::string& name = names.back();
     if (name.empty()) {
@@ -206,7 +206,7 @@ Header read_header(CsvTokenizer& tokenizer, const std::string& file_name,
     }
     const auto field = detail::find_field(name);
     if (!field) {
-      unknown.push_back(std::string(f.text));
+      unknown.emplace_back(f.text);
       warnings->push_back(Diagnostic{file_name, header.line, column, std::string(f.text),
                                      "unknown column " + quoted(f.text) + " ignored"});
       continue;

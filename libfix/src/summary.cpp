@@ -464,7 +464,9 @@ std::string json_summary(const RunInfo& run, const std::vector<Bearing>& bearing
     doc["fixes"].push_back(j);
   }
   doc["caution"] = safety_note();
-  return doc.dump(2) + "\n";
+  // Names come from the user's files; bytes that are not UTF-8 are written as U+FFFD rather
+  // than failing the whole summary (the readers report such names too).
+  return doc.dump(2, ' ', false, nlohmann::ordered_json::error_handler_t::replace) + "\n";
 }
 
 }  // namespace lobfix

@@ -265,7 +265,7 @@ std::vector<Track> read_gpx_tracks(const std::string& path, const std::string& s
     std::string why;
     const auto t = gdal_time_ns(*feature, time_index, why);
     if (!t)
-      gpx_fail(path, what + " " + why, "time");
+      gpx_fail(path, std::string(what).append(" ").append(why), "time");
     point.time_unix_ns = *t;
     track.points.push_back(std::move(point));
   }

@@ -486,7 +486,8 @@ NmeaReadResult read_nmea_track(const std::string& path, const std::string& stati
       slot = &fixes[j];
       ++result.sentences_used;
     }
-    const Fix& use = gga != nullptr ? *gga : *rmc;
+    // The loop above always takes fixes[i], so one of the two is set.
+    const Fix& use = gga != nullptr ? *gga : (rmc != nullptr ? *rmc : fixes[i]);
     TrackPoint p;
     p.time_unix_ns = use.time_unix_ns;
     p.position = use.position;

@@ -620,7 +620,8 @@ TEST_CASE("csv: every column on good rows") {
     for (const auto& [text, reference] : cases) {
       AllColumns row = bearing_row();
       row.reference = text;
-      INFO("reference: " << text);
+      // Not `text` itself: C++17 lets no lambda (INFO makes one) capture a structured binding.
+      INFO("reference: " << row.reference);
       const auto r = read(kAllHeader + row.row());
       REQUIRE(r.observations.size() == 1);
       CHECK(r.observations[0].reference == reference);
@@ -1054,4 +1055,19 @@ TEST_CASE("csv: many rows") {
   CHECK(r.observations.back().source.line == n + 1);
   CHECK(r.observations.back().bearing_deg == static_cast<double>((n - 1) % 360));
   CHECK(r.observations.back().station == "walker, " + std::to_string((n - 1) % 7));
+}
+
+TEST_CASE("csv: a station name that is not UTF-8 is refused with its line and column") {
+  // RFC 3629: 0xFF never occurs in UTF-8; "\xC3\xA9" (e acute) is well formed.
+  std::istringstream in(
+      "time,station,lat,lon,bearing_deg,sigma_deg\n"
+      "2026-06-01T10:00:00Z,walker-\xFF,-31.2,146.5,10,2\n"
+      "2026-06-01T10:01:00Z,caf\xC3\xA9,-31.2,146.6,20,2\n");
+  const lobfix::ReadResult r = lobfix::read_observations_csv(in, "names.csv");
+  REQUIRE(r.row_errors.size() == 1);
+  CHECK(r.row_errors[0].to_string() ==
+        "names.csv:2:2: station is not UTF-8 text (save the file as UTF-8; it may be in a legacy "
+        "code page)");
+  REQUIRE(r.observations.size() == 1);
+  CHECK(r.observations[0].station == "caf\xC3\xA9");
 }
