@@ -184,7 +184,8 @@ WmmCoefficients parse_cof(std::string_view text) {
   cof.dh.assign(s_size, 0.0);
   std::vector<bool> seen(c_size, false);
   for (const Row& r : rows) {
-    const auto k = static_cast<std::size_t>(r.m * N - r.m * (r.m - 1) / 2 + r.n);
+    const int index = r.m * N - r.m * (r.m - 1) / 2 + r.n;  // N is 12 in the WMM: no overflow
+    const auto k = static_cast<std::size_t>(index);
     if (seen[k])
       corrupt("(" + std::to_string(r.n) + ", " + std::to_string(r.m) + ") appears twice");
     seen[k] = true;

@@ -286,7 +286,10 @@ std::vector<Path> split_ring_antimeridian(const Path& ring) {
     rings.push_back(closed_in_window(poly, k_first));
     return rings;
   }
-  for (double k = k_first; k <= k_last; k += 1.0) {
+  // k_first and k_last are whole numbers of turns: count the windows between them.
+  const int windows = static_cast<int>(k_last - k_first) + 1;
+  for (int i = 0; i < windows; ++i) {
+    const double k = k_first + i;
     Path part = clip_at(poly, -180.0 + 360.0 * k, true);
     part = clip_at(part, 180.0 + 360.0 * k, false);
     // A window the ring only touches leaves a zero-area sliver: drop it.

@@ -996,7 +996,7 @@ Fix estimate_station_biases(const std::vector<Bearing>& bearings, const Fix& bas
   const Eigen::MatrixXd scaled = d.asDiagonal() * info * d.asDiagonal();
   const Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> eig(scaled);
   if (!(eig.eigenvalues()(0) > 1e-8 * eig.eigenvalues()(static_cast<Eigen::Index>(dim) - 1))) {
-    out.bias_refusals.push_back(
+    out.bias_refusals.emplace_back(
         "the geometry cannot separate the station offsets from the transmitter's position: "
         "no offsets were estimated");
     return out;

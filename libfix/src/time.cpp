@@ -213,8 +213,8 @@ std::optional<std::int64_t> parse_iso8601_ns(std::string_view text, std::string*
       return fail(range_detail("offset hour", offset_hour, 0, 23));
     if (offset_minute > 59)
       return fail(range_detail("offset minute", offset_minute, 0, 59));
-    offset_s = static_cast<std::int64_t>(sign) *
-               (static_cast<std::int64_t>(offset_hour) * 3600 + offset_minute * 60);
+    offset_s = static_cast<std::int64_t>(sign) * (static_cast<std::int64_t>(offset_hour) * 3600 +
+                                                  static_cast<std::int64_t>(offset_minute) * 60);
   } else {
     return fail("expected Z or an offset like +02:00 after the time of day, found " + c.describe());
   }

@@ -113,7 +113,8 @@ Cof read_repository_cof() {
   cof.h.assign(static_cast<std::size_t>(N * (N + 1) / 2), 0.0);
   cof.dh = cof.h;
   for (const Term& t : terms) {
-    const auto k = static_cast<std::size_t>(t.m * N - t.m * (t.m - 1) / 2 + t.n);
+    const int index = t.m * N - t.m * (t.m - 1) / 2 + t.n;
+    const auto k = static_cast<std::size_t>(index);
     cof.g[k] = t.g;
     cof.dg[k] = t.dg;
     if (t.m > 0) {
