@@ -115,6 +115,31 @@ void BM_SolveFix(benchmark::State& state) {
 }
 BENCHMARK(BM_SolveFix)->Arg(30)->Arg(1000)->Arg(10000)->Unit(benchmark::kMillisecond);
 
+// The robust solve (Andrews' sine, consensus start) with 20% of the bearings replaced by
+// uniform random directions, seeded.
+void BM_RobustSolve20pcWild(benchmark::State& state) {
+  std::vector<lobfix::Bearing> bearings = make_bearings(static_cast<std::size_t>(state.range(0)));
+  std::mt19937_64 rng(2020);
+  std::uniform_real_distribution<double> any(0.0, 360.0);
+  for (std::size_t i = 0; i < bearings.size(); i += 5)
+    bearings[i].azimuth_deg = any(rng);
+  lobfix::SolveOptions options;
+  options.loss = lobfix::RobustLoss::andrews;
+  lobfix::Fix last;
+  for (auto _ : state) {
+    lobfix::Fix fix = lobfix::solve_fix(bearings, options);
+    benchmark::DoNotOptimize(fix);
+    last = std::move(fix);
+  }
+  if (!last.ok()) {
+    state.SkipWithError(("no fix: " + last.message).c_str());
+    return;
+  }
+  state.counters["outliers"] = last.outliers;
+  state.counters["miss_m"] = miss_distance_m(last);
+}
+BENCHMARK(BM_RobustSolve20pcWild)->Arg(30)->Arg(1000)->Arg(10000)->Unit(benchmark::kMillisecond);
+
 // The start point alone (pairwise ray crossings), to see its share of a solve.
 void BM_StartPoint(benchmark::State& state) {
   const std::vector<lobfix::Bearing> bearings =
