@@ -61,6 +61,16 @@ std::string spaced_mgrs(const std::string& mgrs) {
          mgrs.substr(digits, n / 2) + " " + mgrs.substr(digits + n / 2);
 }
 
+// One labelled block of the summary: "Label      text", the text wrapped at 78 columns and
+// its continuation lines indented under the first.
+std::string labelled(const char* label, const std::string& text) {
+  std::string words = wrap_words(text, 78);
+  for (std::size_t k = 0; (k = words.find('\n', k)) != std::string::npos; k += 12) {
+    words.replace(k, 1, "\n           ");
+  }
+  return fmt::format("{:<11}", label) + words + "\n";
+}
+
 std::string signal_title(const std::string& signal) {
   return signal.empty() ? std::string("(no signal label)") : "signal '" + signal + "'";
 }
@@ -251,12 +261,7 @@ std::string text_summary(const RunInfo& run, const std::vector<Bearing>& bearing
       out += "           " + ellipse_line(e) + "\n";
     out += fmt::format("CEP        {} (radius holding 50%)\n", distance_text(u.cep_m));
     out += fmt::format("Fit        chi-square {:.2f} on {} degrees of freedom\n", f.chi2, f.dof);
-    // Indent continuation lines under the first.
-    std::string words = wrap_words(fit_words(f, u), 78);
-    for (std::size_t k = 0; (k = words.find('\n', k)) != std::string::npos; k += 12) {
-      words.replace(k, 1, "\n           ");
-    }
-    out += "           " + words + "\n";
+    out += labelled("", fit_words(f, u));
     {
       const MotionTest& m = r.motion;
       std::string motion_words =
@@ -275,11 +280,7 @@ std::string text_summary(const RunInfo& run, const std::vector<Bearing>& bearing
                     "no sign of a moving transmitter (trend test over {} stations, p "
                     "= {:.3g})",
                     m.stations_tested, m.p_value);
-      motion_words = wrap_words(motion_words, 78);
-      for (std::size_t k = 0; (k = motion_words.find('\n', k)) != std::string::npos; k += 12) {
-        motion_words.replace(k, 1, "\n           ");
-      }
-      out += "Motion     " + motion_words + "\n";
+      out += labelled("Motion", motion_words);
     }
     if (run.robust_loss != RobustLoss::none) {
       const std::size_t n_bearings = f.bearings.size();
@@ -292,11 +293,7 @@ std::string text_summary(const RunInfo& run, const std::vector<Bearing>& bearing
               ? "; they were left out and the rest solved again by least squares"
               : "; such bearings weigh little or nothing in the fix and are left out of the "
                 "chi-square");
-      robust_words = wrap_words(robust_words, 78);
-      for (std::size_t k = 0; (k = robust_words.find('\n', k)) != std::string::npos; k += 12) {
-        robust_words.replace(k, 1, "\n           ");
-      }
-      out += "Robust     " + robust_words + "\n";
+      out += labelled("Robust", robust_words);
     }
     for (const StationBias& sb : f.station_biases) {
       out +=
@@ -304,11 +301,7 @@ std::string text_summary(const RunInfo& run, const std::vector<Bearing>& bearing
                       sb.station, sb.bias_deg, sb.sigma_deg);
     }
     for (const std::string& why : f.bias_refusals) {
-      std::string refusal = wrap_words("no offset for " + why, 78);
-      for (std::size_t k = 0; (k = refusal.find('\n', k)) != std::string::npos; k += 12) {
-        refusal.replace(k, 1, "\n           ");
-      }
-      out += "Offset     " + refusal + "\n";
+      out += labelled("Offset", "no offset for " + why);
     }
     if (u.sigmas_too_small) {
       out += "Ellipses   (scaled by the residuals, F distribution)\n";
