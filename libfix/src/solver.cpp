@@ -749,25 +749,31 @@ Fix solve_ambiguous(const std::vector<Bearing>& bearings, const LatLon& start,
   return fix;
 }
 
+// The bearings with the mirror candidates a fit chose put in place and no alternative left.
+std::vector<Bearing> with_choices(const std::vector<Bearing>& bearings,
+                                  const std::vector<BearingFit>& fits) {
+  std::vector<Bearing> chosen = bearings;
+  for (const BearingFit& bf : fits) {
+    Bearing& b = chosen[bf.index];
+    if (bf.used_alt) {
+      b.azimuth_deg = *bearings[bf.index].alt_azimuth_deg;
+      b.sigma_deg = bearings[bf.index].alt_sigma_deg.value_or(bearings[bf.index].sigma_deg);
+    }
+    b.alt_azimuth_deg.reset();
+  }
+  return chosen;
+}
+
 // --exclude-outliers: least squares on the bearings the robust fit trusted, starting from
 // its fix (with the mirror choices it made); the excluded bearings are still listed, with
 // their residuals at the new fix, weight 0 and the outlier verdict.
 Fix refit_without_outliers(const std::vector<Bearing>& bearings, const Fix& robust,
                            const SolveOptions& options) {
   std::vector<Bearing> kept;
-  std::vector<std::size_t> kept_index;
-  std::vector<Bearing> chosen = bearings;
+  const std::vector<Bearing> chosen = with_choices(bearings, robust.bearings);
   for (const BearingFit& bf : robust.bearings) {
-    if (bf.used_alt) {
-      chosen[bf.index].azimuth_deg = *bearings[bf.index].alt_azimuth_deg;
-      chosen[bf.index].sigma_deg =
-          bearings[bf.index].alt_sigma_deg.value_or(bearings[bf.index].sigma_deg);
-    }
-    chosen[bf.index].alt_azimuth_deg.reset();
-    if (!bf.outlier) {
+    if (!bf.outlier)
       kept.push_back(chosen[bf.index]);
-      kept_index.push_back(bf.index);
-    }
   }
   SolveOptions plain = options;
   plain.loss = RobustLoss::none;
@@ -863,15 +869,7 @@ class BiasPrior final : public ceres::SizedCostFunction<1, 1> {
 Fix estimate_station_biases(const std::vector<Bearing>& bearings, const Fix& base,
                             const SolveOptions& options) {
   Fix out = base;
-  std::vector<Bearing> chosen = bearings;
-  for (const BearingFit& bf : base.bearings) {
-    if (bf.used_alt) {
-      chosen[bf.index].azimuth_deg = *bearings[bf.index].alt_azimuth_deg;
-      chosen[bf.index].sigma_deg =
-          bearings[bf.index].alt_sigma_deg.value_or(bearings[bf.index].sigma_deg);
-    }
-    chosen[bf.index].alt_azimuth_deg.reset();
-  }
+  const std::vector<Bearing> chosen = with_choices(bearings, base.bearings);
   // Which stations qualify: positions spread over at least 5% of the range (about 3 deg).
   std::map<std::string, std::vector<std::size_t>> by_station;
   for (const BearingFit& bf : base.bearings) {
