@@ -43,6 +43,7 @@
 #include <vector>
 
 #include "detail/export_geometry.hpp"
+#include "detail/gdal_output.hpp"
 #include "lobfix/error.hpp"
 #include "lobfix/geodesy.hpp"
 #include "lobfix/shapes.hpp"
@@ -52,6 +53,11 @@ namespace lobfix {
 namespace {
 
 namespace fs = std::filesystem;
+using detail::check_ogr;
+using detail::fail_output;
+using detail::lower_extension;
+using detail::wgs84_lon_lat;
+using detail::write_atomically;
 
 // ---------------------------------------------------------------------------------------
 // Text helpers
@@ -565,196 +571,18 @@ MapContent build_content(const std::vector<Bearing>& bearings,
   return content;
 }
 
-// ---------------------------------------------------------------------------------------
-// Writing through GDAL
-
-void register_gdal() {
-  static std::once_flag once;
-  std::call_once(once, [] { GDALAllRegister(); });
-}
-
-/// While alive, GDAL's messages go to no one (the library never prints); the last one is
-/// kept for OutputError.
-class QuietGdal {
- public:
-  QuietGdal() {
-    CPLPushErrorHandler(CPLQuietErrorHandler);
-    CPLErrorReset();
-  }
-  ~QuietGdal() { CPLPopErrorHandler(); }
-  QuietGdal(const QuietGdal&) = delete;
-  QuietGdal& operator=(const QuietGdal&) = delete;
-};
-
-[[noreturn]] void fail(const std::string& path, const std::string& what) {
-  std::string message = "cannot write " + path + ": " + what;
-  const char* gdal = CPLGetLastErrorMsg();
-  if (gdal != nullptr && *gdal != '\0')
-    message += std::string(" (GDAL: ") + gdal + ")";
-  throw OutputError(message);
-}
-
-void check(OGRErr err, const std::string& path, const std::string& what) {
-  if (err != OGRERR_NONE)
-    fail(path, what);
-}
-
-/// WGS 84 with longitude first (x) and latitude second (y), as GeoJSON and KML write them.
-OGRSpatialReference wgs84_lon_lat() {
-  OGRSpatialReference srs;
-  srs.SetWellKnownGeogCS("WGS84");
-  srs.SetAxisMappingStrategy(OAMS_TRADITIONAL_GIS_ORDER);
-  return srs;
-}
-
-void remove_quietly(const fs::path& p) {
-  std::error_code ec;
-  fs::remove(p, ec);
-}
-
-/// A unique number per write in this process, for temporary names.
-unsigned next_serial() {
-  static std::atomic<unsigned> counter{0};
-  return counter.fetch_add(1);
-}
-
-/// "<dir>/.<stem>.tmp-<pid>-<n><ext>": hidden, unique to this process and call, and with
-/// the target's extension.
-fs::path temporary_for(const fs::path& target, const std::string& extension, unsigned serial) {
-  const std::string name = "." + target.stem().string() + ".tmp-" +
-                           std::to_string(static_cast<long>(::getpid())) + "-" +
-                           std::to_string(serial) + extension;
-  return target.parent_path() / name;
-}
-
-/// GDAL's in-memory file system directory of one write; removed with everything in it.
-class MemoryDir {
- public:
-  explicit MemoryDir(unsigned serial)
-      : dir_("/vsimem/lobfix-export-" + std::to_string(static_cast<long>(::getpid())) + "-" +
-             std::to_string(serial)) {}
-  ~MemoryDir() { VSIRmdirRecursive(dir_.c_str()); }
-  MemoryDir(const MemoryDir&) = delete;
-  MemoryDir& operator=(const MemoryDir&) = delete;
-  const std::string& dir() const { return dir_; }
-
- private:
-  std::string dir_;
-};
-
-/// Write `size` bytes to a new file `temp` and flush them to the disk, checking every
-/// step (a full disk shows up here, not as a short file).
-void write_bytes(const fs::path& temp, const GByte* data, std::size_t size,
-                 const std::string& path) {
-  const auto os_fail = [&](const char* what) {
-    const std::string reason = std::strerror(errno);
-    remove_quietly(temp);
-    CPLErrorReset();
-    fail(path, std::string(what) + ": " + reason);
-  };
-  const int fd = ::open(temp.c_str(), O_WRONLY | O_CREAT | O_EXCL | O_CLOEXEC, 0666);
-  if (fd < 0) {
-    const std::string reason = std::strerror(errno);
-    CPLErrorReset();
-    fail(path, "cannot create a file there: " + reason);
-  }
-  std::size_t done = 0;
-  while (done < size) {
-    const ssize_t n = ::write(fd, data + done, size - done);
-    if (n < 0 && errno == EINTR)
-      continue;
-    if (n <= 0) {
-      const int saved = errno;
-      ::close(fd);
-      errno = saved;
-      os_fail("writing failed");
-    }
-    done += static_cast<std::size_t>(n);
-  }
-  if (::fsync(fd) != 0) {
-    const int saved = errno;
-    ::close(fd);
-    errno = saved;
-    os_fail("flushing to disk failed");
-  }
-  if (::close(fd) != 0)
-    os_fail("closing failed");
-}
-
-/// Create a dataset with `driver_name` in GDAL's memory file system, let `fill` write into
-/// it and close it (every GDAL error checked); with as_kmz, pack the KML it wrote into a
-/// zip archive as doc.kml. Then write the bytes under a temporary name beside `path`
-/// ("<dir>/.<stem>.tmp-<pid>-<n><extension>"), flush them and rename that onto `path`
-/// (replacing a file there). On any failure nothing is left behind and OutputError names
-/// `path`.
-void write_atomically(const std::string& path, const char* driver_name,
-                      const std::string& extension, char** dataset_options,
-                      const std::function<void(GDALDataset&)>& fill, bool as_kmz = false) {
-  register_gdal();
-  const QuietGdal quiet;
-  GDALDriver* driver = GetGDALDriverManager()->GetDriverByName(driver_name);
-  if (driver == nullptr)
-    fail(path, std::string("GDAL has no ") + driver_name + " driver");
-  const fs::path target(path);
-  if (target.filename().empty())
-    fail(path, "the path names no file");
-  const unsigned serial = next_serial();
-  const MemoryDir memory(serial);
-  const std::string memory_file = memory.dir() + (as_kmz ? "/doc.kml" : "/map" + extension);
-
-  GDALDataset* ds = driver->Create(memory_file.c_str(), 0, 0, 0, GDT_Unknown, dataset_options);
-  if (ds == nullptr)
-    fail(path, "the driver cannot create the file");
-  try {
-    fill(*ds);
-  } catch (...) {
-    GDALClose(ds);
-    throw;
-  }
-  CPLErrorReset();
-  GDALClose(ds);
-  if (CPLGetLastErrorType() >= CE_Failure)
-    fail(path, "the driver failed to finish the file");
-  vsi_l_offset size = 0;
-  const GByte* data = VSIGetMemFileBuffer(memory_file.c_str(), &size, FALSE);
-  if (data != nullptr && as_kmz) {
-    // KMZ: the one KML file as doc.kml at the root of a zip archive.
-    const std::string archive = memory.dir() + "/map.kmz";
-    VSILFILE* out = VSIFOpenL(("/vsizip/" + archive + "/doc.kml").c_str(), "wb");
-    if (out == nullptr)
-      fail(path, "cannot start the KMZ archive");
-    const bool written = VSIFWriteL(data, 1, static_cast<std::size_t>(size), out) == size;
-    if (VSIFCloseL(out) != 0 || !written)
-      fail(path, "cannot write the KMZ archive");
-    data = VSIGetMemFileBuffer(archive.c_str(), &size, FALSE);
-  }
-  if (data == nullptr)
-    fail(path, "the driver wrote no file");
-
-  const fs::path temp = temporary_for(target, extension, serial);
-  remove_quietly(temp);  // a stale one of an earlier process with the same id
-  write_bytes(temp, data, static_cast<std::size_t>(size), path);
-  std::error_code ec;
-  fs::rename(temp, target, ec);
-  if (ec) {
-    remove_quietly(temp);
-    CPLErrorReset();
-    fail(path, "cannot move the finished file into place: " + ec.message());
-  }
-}
-
 OGRLayer* create_layer(GDALDataset& ds, const std::string& path, const char* name,
                        OGRwkbGeometryType type, char** layer_options) {
   OGRSpatialReference srs = wgs84_lon_lat();
   OGRLayer* layer = ds.CreateLayer(name, &srs, type, layer_options);
   if (layer == nullptr)
-    fail(path, std::string("cannot create layer ") + name);
+    fail_output(path, std::string("cannot create layer ") + name);
   return layer;
 }
 
 void create_field(OGRLayer& layer, const std::string& path, const char* name, OGRFieldType type) {
   OGRFieldDefn defn(name, type);
-  check(layer.CreateField(&defn), path, std::string("cannot create field ") + name);
+  check_ogr(layer.CreateField(&defn), path, std::string("cannot create field ") + name);
 }
 
 void set_value(OGRFeature& feature, const std::string& name, const Value& value) {
@@ -775,7 +603,7 @@ void set_value(OGRFeature& feature, const std::string& name, const Value& value)
 void write_feature(OGRLayer& layer, const std::string& path, const MapFeature& mf, bool kml) {
   OGRFeatureUniquePtr feature(OGRFeature::CreateFeature(layer.GetLayerDefn()));
   if (!feature)
-    fail(path, "out of memory");
+    fail_output(path, "out of memory");
   for (const auto& [name, value] : mf.fields)
     set_value(*feature, name, value);
   if (kml) {
@@ -787,16 +615,9 @@ void write_feature(OGRLayer& layer, const std::string& path, const MapFeature& m
     }
     feature->SetStyleString(("@" + mf.style).c_str());
   }
-  check(feature->SetGeometry(mf.geometry.get()), path, "cannot set a geometry");
-  check(layer.CreateFeature(feature.get()), path,
-        "cannot write the " + std::string(group_name(mf.group)) + " feature " + mf.name);
-}
-
-std::string lower_extension(const std::string& path) {
-  std::string ext = fs::path(path).extension().string();
-  for (char& c : ext)
-    c = static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
-  return ext;
+  check_ogr(feature->SetGeometry(mf.geometry.get()), path, "cannot set a geometry");
+  check_ogr(layer.CreateFeature(feature.get()), path,
+            "cannot write the " + std::string(group_name(mf.group)) + " feature " + mf.name);
 }
 
 }  // namespace
@@ -840,7 +661,7 @@ void write_kml(const std::string& path, const std::vector<Bearing>& bearings,
     OGRStyleTable table;
     for (const StyleDef& s : content.styles) {
       if (!table.AddStyle(s.name.c_str(), s.ogr_style.c_str())) {
-        fail(path, "cannot add style " + s.name);
+        fail_output(path, "cannot add style " + s.name);
       }
     }
     ds.SetStyleTable(&table);

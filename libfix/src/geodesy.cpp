@@ -7,6 +7,7 @@
 #include <GeographicLib/MGRS.hpp>
 #include <GeographicLib/UTMUPS.hpp>
 
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <string>
@@ -110,6 +111,87 @@ GridReference grid_reference(const LatLon& point) {
   }
   g.utm = buf;
   return g;
+}
+
+int UtmZone::epsg() const noexcept {
+  if (zone == 0)
+    return northp ? 32661 : 32761;
+  return (northp ? 32600 : 32700) + zone;
+}
+
+UtmZone utm_zone_of(const LatLon& point) {
+  if (!(point.lat_deg >= -90.0 && point.lat_deg <= 90.0)) {
+    throw InputError({"", 0, 0, "lat", "latitude outside [-90, 90]"});
+  }
+  UtmZone z;
+  z.zone = GeographicLib::UTMUPS::StandardZone(point.lat_deg, point.lon_deg);
+  z.northp = point.lat_deg >= 0.0;
+  return z;
+}
+
+UtmPoint utm_forward(const UtmZone& zone, const LatLon& point) {
+  UtmPoint u;
+  try {
+    int z = 0;
+    bool northp = true;
+    double k = 0.0;
+    GeographicLib::UTMUPS::Forward(point.lat_deg, point.lon_deg, z, northp, u.easting_m,
+                                   u.northing_m, u.convergence_deg, k, zone.zone);
+    if (northp != zone.northp) {
+      // The other hemisphere's false northing: UTM south adds 10,000 km.
+      u.northing_m += zone.northp ? -10000000.0 : 10000000.0;
+    }
+  } catch (const GeographicLib::GeographicErr& e) {
+    throw InputError({"", 0, 0, "position", std::string("outside the UTM zone: ") + e.what()});
+  }
+  return u;
+}
+
+LatLon utm_reverse(const UtmZone& zone, double easting_m, double northing_m) {
+  LatLon p;
+  try {
+    GeographicLib::UTMUPS::Reverse(zone.zone, zone.northp, easting_m, northing_m, p.lat_deg,
+                                   p.lon_deg, /*mgrslimits=*/false);
+  } catch (const GeographicLib::GeographicErr& e) {
+    throw InputError({"", 0, 0, "position", std::string("outside the UTM zone: ") + e.what()});
+  }
+  return p;
+}
+
+std::string mgrs_reference(const LatLon& point, int digits) {
+  if (!(point.lat_deg >= -90.0 && point.lat_deg <= 90.0)) {
+    throw InputError({"", 0, 0, "lat", "latitude outside [-90, 90]"});
+  }
+  if (digits < 0 || digits > 5) {
+    throw InputError({"", 0, 0, "digits", "MGRS digits must be 0 to 5"});
+  }
+  int zone = 0;
+  bool northp = true;
+  double x = 0.0;
+  double y = 0.0;
+  GeographicLib::UTMUPS::Forward(point.lat_deg, point.lon_deg, zone, northp, x, y);
+  std::string mgrs;
+  GeographicLib::MGRS::Forward(zone, northp, x, y, point.lat_deg, digits, mgrs);
+  return mgrs;
+}
+
+std::string mgrs_spaced(const std::string& mgrs) {
+  // Grid zone designator: 1-2 digits and a band letter (UTM) or one letter (UPS); then two
+  // letters of the 100 km square; then the digits, half easting, half northing.
+  std::size_t i = 0;
+  while (i < mgrs.size() && mgrs[i] >= '0' && mgrs[i] <= '9')
+    ++i;
+  const std::size_t gzd = std::min(mgrs.size(), i + 1);
+  const std::size_t square = std::min(mgrs.size(), gzd + 2);
+  const std::string digits = mgrs.substr(square);
+  std::string out = mgrs.substr(0, gzd);
+  if (square > gzd)
+    out += " " + mgrs.substr(gzd, square - gzd);
+  if (!digits.empty()) {
+    const std::size_t half = digits.size() / 2;
+    out += " " + digits.substr(0, half) + " " + digits.substr(half);
+  }
+  return out;
 }
 
 std::string format_dms(double angle_deg, bool is_latitude, int second_decimals) {

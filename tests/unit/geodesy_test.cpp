@@ -110,3 +110,32 @@ TEST_CASE("degrees, minutes and seconds never show 60 seconds") {
         "11\xC2\xB0"
         "00'00.00\"N");
 }
+
+TEST_CASE("UTM in a chosen zone and MGRS at a chosen precision agree with GeoConvert") {
+  // `echo "40.51234 -105.08321" | GeoConvert -u -p 3` gives 13n 492950.587 4484627.797 and
+  // `GeoConvert -m -p -1` / `-p -3` give 13TDE92958462 / 13TDE9284 (geographiclib-tools
+  // 2.1.2, run when writing this test).
+  const lobfix::LatLon p{40.51234, -105.08321};
+  const lobfix::UtmZone zone = lobfix::utm_zone_of(p);
+  CHECK(zone.zone == 13);
+  CHECK(zone.northp);
+  CHECK(zone.epsg() == 32613);  // EPSG: WGS 84 / UTM zone 13N
+  const lobfix::UtmPoint u = lobfix::utm_forward(zone, p);
+  CHECK_ABS(u.easting_m, 492950.587, 0.0011);
+  CHECK_ABS(u.northing_m, 4484627.797, 0.0011);
+  const lobfix::LatLon back = lobfix::utm_reverse(zone, u.easting_m, u.northing_m);
+  CHECK_ABS(back.lat_deg, p.lat_deg, 1e-9);
+  CHECK_ABS(back.lon_deg, p.lon_deg, 1e-9);
+  CHECK(lobfix::mgrs_reference(p, 4) == "13TDE92958462");
+  CHECK(lobfix::mgrs_reference(p, 2) == "13TDE9284");
+  CHECK(lobfix::mgrs_spaced("13TDE92958462") == "13T DE 9295 8462");
+  CHECK(lobfix::mgrs_spaced("ZGC1234") == "Z GC 12 34");
+  // Just south of the equator in the north zone: the northing runs on below 0, continuous
+  // with the northern half (`GeoConvert -u -p 3` of "-0.001 12.0" gives the south zone's
+  // 33s 166021.443 9999889.317; minus 10,000 km).
+  const lobfix::UtmPoint s = lobfix::utm_forward({33, true}, {-0.001, 12.0});
+  CHECK_ABS(s.easting_m, 166021.443, 0.0011);
+  CHECK_ABS(s.northing_m, 9999889.317 - 10000000.0, 0.0011);
+  CHECK(lobfix::UtmZone{0, false}.epsg() == 32761);  // EPSG: WGS 84 / UPS South
+  CHECK_THROWS_AS(lobfix::mgrs_reference(p, 6), lobfix::InputError);
+}

@@ -68,6 +68,37 @@ struct GridReference {
 /// @throws InputError if the latitude is outside [-90, 90].
 GridReference grid_reference(const LatLon& point);
 
+/// A UTM zone (1..60) and hemisphere, or UPS (zone 0) for the polar caps.
+struct UtmZone {
+  int zone = 0;
+  bool northp = true;
+  /// EPSG code of WGS 84 / UTM in this zone: 326zz north, 327zz south; 32661 / 32761 for UPS
+  /// north / south.
+  int epsg() const noexcept;
+};
+/// The standard zone of a point (with the Norway and Svalbard exceptions, as MGRS uses).
+/// @throws InputError if the latitude is outside [-90, 90].
+UtmZone utm_zone_of(const LatLon& point);
+/// Easting and northing (m) of `point` in `zone`, which need not be its standard one (UTM
+/// extends some way past its 6 degrees, accurately up to about 3,000 km from the central
+/// meridian). Also the meridian convergence (deg) there.
+struct UtmPoint {
+  double easting_m = 0.0;
+  double northing_m = 0.0;
+  double convergence_deg = 0.0;
+};
+/// @throws InputError if the point is beyond the zone's reach (GeographicLib refuses it).
+UtmPoint utm_forward(const UtmZone& zone, const LatLon& point);
+/// The point at easting_m, northing_m of `zone`. @throws InputError when out of reach.
+LatLon utm_reverse(const UtmZone& zone, double easting_m, double northing_m);
+/// MGRS reference of a point with `digits` digits per axis (0..5: 100 km down to 1 m),
+/// truncated as the MGRS standard asks, e.g. "33UXP0412" for digits 2.
+/// @throws InputError if the latitude is outside [-90, 90] or digits outside 0..5.
+std::string mgrs_reference(const LatLon& point, int digits);
+/// The same split for reading aloud: grid zone, 100 km square, easting, northing separated
+/// by spaces, e.g. "33U XP 04 12".
+std::string mgrs_spaced(const std::string& mgrs);
+
 /// Decimal degrees to degrees-minutes-seconds, e.g. "51°28'38.12\"N".
 std::string format_dms(double angle_deg, bool is_latitude, int second_decimals = 2);
 
