@@ -3,6 +3,7 @@
 #include <cstdio>
 #include <iostream>
 
+#include "area_command.hpp"
 #include "exit_codes.hpp"
 #include "solve_command.hpp"
 
@@ -17,12 +18,15 @@ int main(int argc, char** argv) {
   app.set_version_flag("--version", std::string("lobfix ") + LOBFIX_VERSION);
   app.require_subcommand(1);
   app.footer(
-      "Run 'lobfix solve --help' for the bearing file format and options.\n"
+      "Run 'lobfix solve --help' for the bearing file format and options, 'lobfix area "
+      "--help' for the search area.\n"
       "Exit codes: 0 fix found, 1 bad input, 2 bad command line, 3 no fix for some "
       "signal, 4 output not written.");
 
   lobfix_app::SolveArgs solve_args;
   CLI::App* solve = lobfix_app::add_solve_command(app, solve_args);
+  lobfix_app::AreaArgs area_args;
+  CLI::App* area = lobfix_app::add_area_command(app, area_args);
 
   try {
     app.parse(argc, argv);
@@ -38,5 +42,7 @@ int main(int argc, char** argv) {
   }
   if (solve->parsed())
     return lobfix_app::run_solve(solve_args);
+  if (area->parsed())
+    return lobfix_app::run_area(area_args);
   return lobfix_app::kExitUsage;
 }

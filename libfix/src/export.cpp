@@ -46,6 +46,7 @@
 #include "detail/gdal_output.hpp"
 #include "lobfix/error.hpp"
 #include "lobfix/geodesy.hpp"
+#include "lobfix/segments.hpp"
 #include "lobfix/shapes.hpp"
 
 namespace lobfix {
@@ -133,19 +134,42 @@ struct FieldDef {
 
 // Every attribute field, in the order they appear in the GeoJSON layer.
 const FieldDef kFields[] = {
-    {"kind", OFTString},          {"signal", OFTString},     {"station", OFTString},
-    {"row", OFTInteger},          {"time", OFTString},       {"bearing_deg", OFTReal},
-    {"sigma_deg", OFTReal},       {"residual_deg", OFTReal}, {"normalized_residual", OFTReal},
-    {"probability", OFTReal},     {"semi_major_m", OFTReal}, {"semi_minor_m", OFTReal},
-    {"orientation_deg", OFTReal}, {"lat", OFTReal},          {"lon", OFTReal},
-    {"cep_m", OFTReal},           {"chi2", OFTReal},         {"dof", OFTInteger},
-    {"p_value", OFTReal},         {"weight", OFTReal},       {"outlier", OFTInteger},
+    {"kind", OFTString},
+    {"signal", OFTString},
+    {"station", OFTString},
+    {"row", OFTInteger},
+    {"time", OFTString},
+    {"bearing_deg", OFTReal},
+    {"sigma_deg", OFTReal},
+    {"residual_deg", OFTReal},
+    {"normalized_residual", OFTReal},
+    {"probability", OFTReal},
+    {"semi_major_m", OFTReal},
+    {"semi_minor_m", OFTReal},
+    {"orientation_deg", OFTReal},
+    {"lat", OFTReal},
+    {"lon", OFTReal},
+    {"cep_m", OFTReal},
+    {"chi2", OFTReal},
+    {"dof", OFTInteger},
+    {"p_value", OFTReal},
+    {"weight", OFTReal},
+    {"outlier", OFTInteger},
     {"outliers", OFTInteger},
+    {"segment", OFTString},
+    {"rank", OFTInteger},
+    {"poa", OFTReal},
+    {"cumulative_poa", OFTReal},
+    {"initial_poa", OFTReal},
+    {"pod", OFTReal},
+    {"mgrs", OFTString},
+    {"area_m2", OFTReal},
+    {"mass", OFTReal},
 };
 
-enum class Group { stations, rays, fixes, ellipses, tracks };
-constexpr Group kGroups[] = {Group::stations, Group::rays, Group::fixes, Group::ellipses,
-                             Group::tracks};
+enum class Group { stations, rays, fixes, ellipses, tracks, regions, segments };
+constexpr Group kGroups[] = {Group::stations, Group::rays,    Group::fixes,   Group::ellipses,
+                             Group::tracks,   Group::regions, Group::segments};
 
 const char* group_name(Group g) {
   switch (g) {
@@ -159,6 +183,10 @@ const char* group_name(Group g) {
       return "ellipses";
     case Group::tracks:
       return "tracks";
+    case Group::regions:
+      return "regions";
+    case Group::segments:
+      return "segments";
   }
   return "";
 }
@@ -180,6 +208,11 @@ std::vector<const char*> group_fields(Group g) {
       return {"kind", "signal", "probability", "semi_major_m", "semi_minor_m", "orientation_deg"};
     case Group::tracks:
       return {"kind", "signal"};
+    case Group::regions:
+      return {"kind", "signal", "probability", "mass", "area_m2"};
+    case Group::segments:
+      return {"kind",        "signal", "segment", "rank",    "poa", "cumulative_poa",
+              "initial_poa", "pod",    "mgrs",    "area_m2", "lat", "lon"};
   }
   return {};
 }
@@ -276,6 +309,37 @@ std::unique_ptr<OGRGeometry> polygon_geometry(const Path& unrolled) {
   return multi;
 }
 
+/// Polygons with holes (regions, segments): small against the Earth, so each ring is cut
+/// at the antimeridian on its own and a ring crossing it is drawn as its pieces without
+/// holes (a rare case: a search area astride the antimeridian).
+std::unique_ptr<OGRGeometry> area_geometry(const std::vector<GeoPolygon>& parts) {
+  auto multi = std::make_unique<OGRMultiPolygon>();
+  for (const GeoPolygon& part : parts) {
+    const std::vector<Path> outer = split_ring_antimeridian(part.outer);
+    if (outer.size() != 1) {
+      for (const Path& ring : outer)
+        multi->addGeometryDirectly(polygon(ring).release());
+      continue;
+    }
+    std::unique_ptr<OGRPolygon> poly = polygon(outer[0]);
+    for (const Path& hole : part.holes) {
+      const std::vector<Path> pieces = split_ring_antimeridian(hole);
+      if (pieces.size() != 1)
+        continue;
+      auto ring = std::make_unique<OGRLinearRing>();
+      ring->setNumPoints(static_cast<int>(pieces[0].size()), FALSE);
+      for (std::size_t i = 0; i < pieces[0].size(); ++i)
+        ring->setPoint(static_cast<int>(i), pieces[0][i].lon_deg, pieces[0][i].lat_deg);
+      ring->closeRings();
+      poly->addRingDirectly(ring.release());
+    }
+    multi->addGeometryDirectly(poly.release());
+  }
+  if (multi->getNumGeometries() == 1)
+    return std::unique_ptr<OGRGeometry>(multi->getGeometryRef(0)->clone());
+  return multi;
+}
+
 std::unique_ptr<OGRGeometry> point_geometry(const LatLon& p) {
   return std::make_unique<OGRPoint>(wrap_deg180(p.lon_deg), p.lat_deg);
 }
@@ -307,7 +371,8 @@ void check_options(const std::string& path, const ExportOptions& options) {
 }
 
 MapContent build_content(const std::vector<Bearing>& bearings,
-                         const std::vector<FixResult>& results, const ExportOptions& options) {
+                         const std::vector<FixResult>& results, const ExportOptions& options,
+                         const std::vector<SearchArea>& areas) {
   MapContent content;
 
   // Colours by signal, in order of first appearance (bearings, then fixes).
@@ -568,6 +633,70 @@ MapContent build_content(const std::vector<Bearing>& bearings,
     f.style = add_style(strf("track-%zu", colour), strf("PEN(c:#%sFF,w:3px)", kPalette[colour]));
     content.features.push_back(std::move(f));
   }
+  // Search areas: the highest-density regions and the ranked segments.
+  for (const SearchArea& area : areas) {
+    if (!area.map.ok)
+      continue;
+    const std::size_t colour = colour_index(area.signal);
+    const std::string label = signal_label(area.signal);
+    for (const HpdRegion& r : area.regions) {
+      if (r.parts.empty())
+        continue;
+      MapFeature f;
+      f.group = Group::regions;
+      f.fields = {{"kind", std::string("region")},
+                  {"signal", area.signal},
+                  {"probability", real_or_null(r.probability)},
+                  {"mass", real_or_null(r.mass)},
+                  {"area_m2", real_or_null(r.area_m2)}};
+      f.geometry = area_geometry(r.parts);
+      f.name = percent(r.probability) + " region";
+      if (!area.signal.empty())
+        f.name += " " + area.signal;
+      f.description = "Highest-probability region of signal " + label +
+                      ": the smallest area "
+                      "holding " +
+                      percent(r.probability) + " of the probability map (" +
+                      strf("%.2f km2", r.area_m2 / 1e6) + "). An estimate: reflections mislead.";
+      const long per_mille = std::lround(r.probability * 1000.0);
+      // Dashed outline, light fill: told apart from the ellipses (solid) in grey print too.
+      f.style = add_style(strf("region-%zu-%03ld", colour, per_mille),
+                          strf("PEN(c:#%sFF,w:%.1fpx,p:\"6px 3px\");BRUSH(fc:#%s%02X)",
+                               kPalette[colour], ellipse_width_px(r.probability), kPalette[colour],
+                               ellipse_fill_alpha(r.probability) / 2));
+      content.features.push_back(std::move(f));
+    }
+    for (const SearchSegment& seg : area.plan.segments) {
+      MapFeature f;
+      f.group = Group::segments;
+      f.fields = {{"kind", std::string("segment")},
+                  {"signal", area.signal},
+                  {"segment", seg.id},
+                  {"rank", seg.rank},
+                  {"poa", real_or_null(seg.poa)},
+                  {"cumulative_poa", real_or_null(seg.cumulative_poa)},
+                  {"initial_poa", real_or_null(seg.initial_poa)},
+                  {"pod", seg.pods.empty() ? Value() : Value(seg.combined_pod)},
+                  {"mgrs", seg.mgrs},
+                  {"area_m2", real_or_null(seg.area_m2)},
+                  {"lat", real_or_null(seg.centre.lat_deg)},
+                  {"lon", real_or_null(seg.centre.lon_deg)}};
+      f.geometry = area_geometry(seg.outline);
+      f.name = seg.id + " #" + std::to_string(seg.rank);
+      f.description = strf(
+          "Search segment %s, rank %d: POA %.1f%% (cumulative %.1f%%), %.3f km2, "
+          "centre MGRS %s.",
+          seg.id.c_str(), seg.rank, 100.0 * seg.poa, 100.0 * seg.cumulative_poa, seg.area_m2 / 1e6,
+          mgrs_spaced(seg.mgrs).c_str());
+      if (!seg.pods.empty())
+        f.description += strf(" Searched without success (combined POD %.0f%%); POA before %.1f%%.",
+                              100.0 * seg.combined_pod, 100.0 * seg.initial_poa);
+      f.style = add_style("segment", strf("PEN(c:#%sFF,w:1.5px);BRUSH(fc:#00000000);"
+                                          "LABEL(c:#%sFF,s:0.9)",
+                                          kStationColour, kStationColour));
+      content.features.push_back(std::move(f));
+    }
+  }
   return content;
 }
 
@@ -624,8 +753,14 @@ void write_feature(OGRLayer& layer, const std::string& path, const MapFeature& m
 
 void write_geojson(const std::string& path, const std::vector<Bearing>& bearings,
                    const std::vector<FixResult>& results, const ExportOptions& options) {
+  write_geojson(path, bearings, results, {}, options);
+}
+
+void write_geojson(const std::string& path, const std::vector<Bearing>& bearings,
+                   const std::vector<FixResult>& results, const std::vector<SearchArea>& areas,
+                   const ExportOptions& options) {
   check_options(path, options);
-  const MapContent content = build_content(bearings, results, options);
+  const MapContent content = build_content(bearings, results, options, areas);
   std::string extension = fs::path(path).extension().string();
   if (extension.empty())
     extension = ".geojson";
@@ -648,8 +783,14 @@ void write_geojson(const std::string& path, const std::vector<Bearing>& bearings
 
 void write_kml(const std::string& path, const std::vector<Bearing>& bearings,
                const std::vector<FixResult>& results, const ExportOptions& options) {
+  write_kml(path, bearings, results, {}, options);
+}
+
+void write_kml(const std::string& path, const std::vector<Bearing>& bearings,
+               const std::vector<FixResult>& results, const std::vector<SearchArea>& areas,
+               const ExportOptions& options) {
   check_options(path, options);
-  const MapContent content = build_content(bearings, results, options);
+  const MapContent content = build_content(bearings, results, options, areas);
   // LIBKML chooses by the extension: .kml one file, .kmz an archive of one file per layer
   // (with relative links between them that not every viewer resolves), anything else a
   // directory. So LIBKML always writes one .kml file, and a .kmz target gets that file as
@@ -666,10 +807,10 @@ void write_kml(const std::string& path, const std::vector<Bearing>& bearings,
     }
     ds.SetStyleTable(&table);
     for (Group g : kGroups) {
-      // The tracks folder appears only when there are windowed fixes to join.
-      if (g == Group::tracks &&
+      // The tracks, regions and segments folders appear only when there is something in them.
+      if ((g == Group::tracks || g == Group::regions || g == Group::segments) &&
           std::none_of(content.features.begin(), content.features.end(),
-                       [](const MapFeature& mf) { return mf.group == Group::tracks; })) {
+                       [g](const MapFeature& mf) { return mf.group == g; })) {
         continue;
       }
       const bool points = g == Group::stations || g == Group::fixes;
@@ -695,6 +836,109 @@ void write_kml(const std::string& path, const std::vector<Bearing>& bearings,
   CPLStringList dataset_options;
   dataset_options.SetNameValue("NAME", "lobfix");
   write_atomically(path, "LIBKML", extension, dataset_options.List(), fill, as_kmz);
+}
+
+void write_geopackage(const std::string& path, const std::vector<Bearing>& bearings,
+                      const std::vector<FixResult>& results, const std::vector<SearchArea>& areas,
+                      const ExportOptions& options) {
+  check_options(path, options);
+  const MapContent content = build_content(bearings, results, options, areas);
+  write_atomically(path, "GPKG", ".gpkg", nullptr, [&](GDALDataset& ds) {
+    for (Group g : kGroups) {
+      const bool any = std::any_of(content.features.begin(), content.features.end(),
+                                   [g](const MapFeature& mf) { return mf.group == g; });
+      // Every layer of the first four always (a reader finds them empty when nothing was
+      // solved); tracks, regions and segments when there are any.
+      if (!any && (g == Group::tracks || g == Group::regions || g == Group::segments))
+        continue;
+      const bool points = g == Group::stations || g == Group::fixes;
+      const bool areas_layer = g == Group::ellipses || g == Group::regions || g == Group::segments;
+      OGRLayer* layer = create_layer(
+          ds, path, group_name(g),
+          points ? wkbPoint : (areas_layer ? wkbMultiPolygon : wkbMultiLineString), nullptr);
+      create_field(*layer, path, "name", OFTString);
+      create_field(*layer, path, "description", OFTString);
+      for (const char* name : group_fields(g))
+        create_field(*layer, path, name, field_type(name));
+      check_ogr(layer->StartTransaction(), path, "cannot start a transaction");
+      for (const MapFeature& mf : content.features) {
+        if (mf.group != g)
+          continue;
+        OGRFeatureUniquePtr feature(OGRFeature::CreateFeature(layer->GetLayerDefn()));
+        if (!feature)
+          fail_output(path, "out of memory");
+        for (const auto& [name, value] : mf.fields)
+          set_value(*feature, name, value);
+        set_value(*feature, "name", mf.name);
+        set_value(*feature, "description", mf.description);
+        std::unique_ptr<OGRGeometry> geometry(mf.geometry->clone());
+        if (!points) {
+          geometry.reset(OGRGeometryFactory::forceTo(
+              geometry.release(), areas_layer ? wkbMultiPolygon : wkbMultiLineString));
+        }
+        check_ogr(feature->SetGeometry(geometry.get()), path, "cannot set a geometry");
+        check_ogr(layer->CreateFeature(feature.get()), path,
+                  "cannot write the " + std::string(group_name(g)) + " feature " + mf.name);
+      }
+      check_ogr(layer->CommitTransaction(), path, "cannot commit a layer");
+    }
+  });
+}
+
+void write_gpx_waypoints(const std::string& path, const std::vector<FixResult>& results,
+                         const std::vector<SearchArea>& areas) {
+  // Names of at most 10 ASCII characters, which hand-held GPS units show whole (common
+  // practice; many show more): FIX and S01... for one signal, FIX1 and 1S01... for several.
+  std::vector<std::string> signals;
+  for (const FixResult& r : results) {
+    if (has_position(r.fix) &&
+        std::find(signals.begin(), signals.end(), r.fix.signal) == signals.end())
+      signals.push_back(r.fix.signal);
+  }
+  const bool several = signals.size() > 1;
+  const auto prefix_of = [&](const std::string& signal) {
+    const auto it = std::find(signals.begin(), signals.end(), signal);
+    return several ? std::to_string(it - signals.begin() + 1) : std::string();
+  };
+  write_atomically(path, "GPX", ".gpx", nullptr, [&](GDALDataset& ds) {
+    OGRLayer* layer = create_layer(ds, path, "waypoints", wkbPoint, nullptr);
+    const auto add = [&](const LatLon& p, const std::string& name, const std::string& cmt,
+                         const std::string& desc, const char* sym) {
+      OGRFeatureUniquePtr feature(OGRFeature::CreateFeature(layer->GetLayerDefn()));
+      if (!feature)
+        fail_output(path, "out of memory");
+      set_value(*feature, "name", name.substr(0, 10));
+      set_value(*feature, "cmt", cmt);
+      set_value(*feature, "desc", desc);
+      set_value(*feature, "sym", std::string(sym));
+      OGRPoint point(wrap_deg180(p.lon_deg), p.lat_deg);
+      check_ogr(feature->SetGeometry(&point), path, "cannot set a waypoint");
+      check_ogr(layer->CreateFeature(feature.get()), path, "cannot write waypoint " + name);
+    };
+    std::set<std::string> done;
+    for (const FixResult& r : results) {
+      if (!has_position(r.fix) || !done.insert(r.fix.signal).second)
+        continue;
+      const std::string pre = prefix_of(r.fix.signal);
+      add(r.fix.position, "FIX" + pre,
+          "fix of signal " + signal_label(r.fix.signal) + ", CEP " +
+              distance_text(r.uncertainty.cep_m),
+          "lobfix estimate: a fix is an estimate; reflections mislead.", "Flag");
+      for (const SearchArea& a : areas) {
+        if (a.signal != r.fix.signal)
+          continue;
+        for (const SearchSegment& seg : a.plan.segments) {
+          add(seg.centre, pre + seg.id,
+              strf("segment %s rank %d POA %.1f%%", seg.id.c_str(), seg.rank, 100.0 * seg.poa),
+              "centre of search segment " + seg.id + ", MGRS " + mgrs_spaced(seg.mgrs), "Waypoint");
+        }
+      }
+    }
+  });
+}
+
+void write_text_file(const std::string& path, const std::string& text) {
+  detail::write_file_atomically(path, text);
 }
 
 }  // namespace lobfix

@@ -198,6 +198,21 @@ void write_atomically(const std::string& path, const char* driver_name,
   }
 }
 
+void write_file_atomically(const std::string& path, const std::string& bytes) {
+  const fs::path target(path);
+  if (target.filename().empty())
+    fail_output(path, "the path names no file");
+  const fs::path temp = temporary_for(target, target.extension().string(), next_serial());
+  remove_quietly(temp);
+  write_bytes(temp, reinterpret_cast<const GByte*>(bytes.data()), bytes.size(), path);
+  std::error_code ec;
+  fs::rename(temp, target, ec);
+  if (ec) {
+    remove_quietly(temp);
+    fail_output(path, "cannot move the finished file into place: " + ec.message());
+  }
+}
+
 std::string lower_extension(const std::string& path) {
   std::string ext = fs::path(path).extension().string();
   for (char& c : ext)

@@ -5,6 +5,7 @@
 #include <GeographicLib/AzimuthalEquidistant.hpp>
 #include <GeographicLib/Geodesic.hpp>
 #include <GeographicLib/MGRS.hpp>
+#include <GeographicLib/TransverseMercator.hpp>
 #include <GeographicLib/UTMUPS.hpp>
 
 #include <algorithm>
@@ -129,31 +130,77 @@ UtmZone utm_zone_of(const LatLon& point) {
   return z;
 }
 
+namespace {
+
+// UTM zones are used beyond their 6 degrees for maps that straddle a zone edge or are large:
+// the Krueger series of GeographicLib's TransverseMercator stays accurate to 5 nm within
+// 3,900 km of the central meridian (Karney 2011, "Transverse Mercator with an accuracy of a
+// few nanometers", J. Geodesy 85:475-485). UTMUPS refuses eastings outside 0-1,000 km, so
+// the zone's projection is called directly, up to 35 degrees of longitude from its meridian.
+constexpr double kMaxZoneLongitudeDeg = 35.0;
+constexpr double kFalseEastingM = 500000.0;
+constexpr double kFalseNorthingSouthM = 10000000.0;
+
+double central_meridian_deg(int zone) {
+  return 6.0 * zone - 183.0;
+}
+
+[[noreturn]] void beyond_zone(const UtmZone& zone) {
+  throw InputError(
+      {"", 0, 0, "position",
+       "beyond the reach of UTM zone " + std::to_string(zone.zone) + (zone.northp ? "N" : "S")});
+}
+
+}  // namespace
+
 UtmPoint utm_forward(const UtmZone& zone, const LatLon& point) {
   UtmPoint u;
-  try {
-    int z = 0;
-    bool northp = true;
-    double k = 0.0;
-    GeographicLib::UTMUPS::Forward(point.lat_deg, point.lon_deg, z, northp, u.easting_m,
-                                   u.northing_m, u.convergence_deg, k, zone.zone);
-    if (northp != zone.northp) {
-      // The other hemisphere's false northing: UTM south adds 10,000 km.
-      u.northing_m += zone.northp ? -10000000.0 : 10000000.0;
+  if (!(point.lat_deg >= -90.0 && point.lat_deg <= 90.0))
+    beyond_zone(zone);
+  if (zone.zone == 0) {
+    try {
+      int z = 0;
+      bool northp = true;
+      GeographicLib::UTMUPS::Forward(point.lat_deg, point.lon_deg, z, northp, u.easting_m,
+                                     u.northing_m, u.convergence_deg, u.scale, 0);
+      if (northp != zone.northp)
+        beyond_zone(zone);
+    } catch (const GeographicLib::GeographicErr&) {
+      beyond_zone(zone);
     }
-  } catch (const GeographicLib::GeographicErr& e) {
-    throw InputError({"", 0, 0, "position", std::string("outside the UTM zone: ") + e.what()});
+    return u;
   }
+  const double lon0 = central_meridian_deg(zone.zone);
+  if (!(std::fabs(wrap_deg180(point.lon_deg - lon0)) <= kMaxZoneLongitudeDeg))
+    beyond_zone(zone);
+  GeographicLib::TransverseMercator::UTM().Forward(lon0, point.lat_deg, point.lon_deg, u.easting_m,
+                                                   u.northing_m, u.convergence_deg, u.scale);
+  u.easting_m += kFalseEastingM;
+  if (!zone.northp)
+    u.northing_m += kFalseNorthingSouthM;
   return u;
 }
 
 LatLon utm_reverse(const UtmZone& zone, double easting_m, double northing_m) {
   LatLon p;
-  try {
-    GeographicLib::UTMUPS::Reverse(zone.zone, zone.northp, easting_m, northing_m, p.lat_deg,
-                                   p.lon_deg, /*mgrslimits=*/false);
-  } catch (const GeographicLib::GeographicErr& e) {
-    throw InputError({"", 0, 0, "position", std::string("outside the UTM zone: ") + e.what()});
+  if (zone.zone == 0) {
+    try {
+      GeographicLib::UTMUPS::Reverse(0, zone.northp, easting_m, northing_m, p.lat_deg, p.lon_deg,
+                                     /*mgrslimits=*/false);
+    } catch (const GeographicLib::GeographicErr&) {
+      beyond_zone(zone);
+    }
+    return p;
+  }
+  const double lon0 = central_meridian_deg(zone.zone);
+  double gamma = 0.0;
+  double k = 0.0;
+  GeographicLib::TransverseMercator::UTM().Reverse(
+      lon0, easting_m - kFalseEastingM, northing_m - (zone.northp ? 0.0 : kFalseNorthingSouthM),
+      p.lat_deg, p.lon_deg, gamma, k);
+  if (!std::isfinite(p.lat_deg) || !std::isfinite(p.lon_deg) ||
+      !(std::fabs(wrap_deg180(p.lon_deg - lon0)) <= kMaxZoneLongitudeDeg)) {
+    beyond_zone(zone);
   }
   return p;
 }

@@ -158,6 +158,70 @@ nlohmann::ordered_json diagnostic_json(const Diagnostic& d) {
           {"field", d.field}, {"reason", d.reason}, {"message", d.to_string()}};
 }
 
+std::string percent_text(double p) {
+  return fmt::format("{:.1f}%", 100.0 * p);
+}
+
+nlohmann::ordered_json area_json(const SearchArea& a) {
+  nlohmann::ordered_json j;
+  j["signal"] = a.signal;
+  j["ok"] = a.map.ok;
+  if (!a.map.ok) {
+    j["message"] = a.map.message;
+    return j;
+  }
+  const UtmGrid& g = a.map.grid;
+  j["map"] = {{"crs", "EPSG:" + std::to_string(g.zone.epsg())},
+              {"west_m", g.west_m},
+              {"north_m", g.north_m},
+              {"cell_m", g.cell_m},
+              {"columns", g.columns},
+              {"rows", g.rows},
+              {"bearings", a.map.bearings},
+              {"wild_fraction", a.map.wild_fraction},
+              {"max_azimuth_error_deg", a.map.max_azimuth_error_deg},
+              {"border_mass", a.map.border_mass},
+              {"unrefined_mass", a.map.unrefined_mass},
+              {"cells_evaluated", a.map.cells_evaluated}};
+  j["regions"] = nlohmann::ordered_json::array();
+  for (const HpdRegion& r : a.regions) {
+    j["regions"].push_back({{"probability", r.probability},
+                            {"mass", r.mass},
+                            {"area_m2", r.area_m2},
+                            {"parts", r.parts.size()}});
+  }
+  j["comparisons"] = nlohmann::ordered_json::array();
+  for (const RegionComparison& c : a.comparisons) {
+    j["comparisons"].push_back({{"probability", c.probability},
+                                {"ellipse_area_m2", c.ellipse_area_m2},
+                                {"region_area_m2", c.region_area_m2},
+                                {"map_mass_in_ellipse", c.map_mass_in_ellipse},
+                                {"agree", c.agree},
+                                {"advice", c.advice}});
+  }
+  j["segment_m"] = a.plan.side_m;
+  j["segments"] = nlohmann::ordered_json::array();
+  for (const SearchSegment& s : a.plan.segments) {
+    nlohmann::ordered_json js = {{"id", s.id},
+                                 {"rank", s.rank},
+                                 {"poa", s.poa},
+                                 {"cumulative_poa", s.cumulative_poa},
+                                 {"initial_poa", s.initial_poa},
+                                 {"area_m2", s.area_m2},
+                                 {"squares", s.squares},
+                                 {"mgrs", s.mgrs},
+                                 {"lat", s.centre.lat_deg},
+                                 {"lon", s.centre.lon_deg}};
+    js["pods"] = s.pods;
+    js["combined_pod"] = s.combined_pod;
+    j["segments"].push_back(js);
+  }
+  j["rest_poa"] = a.plan.rest_poa;
+  j["initial_rest_poa"] = a.plan.initial_rest_poa;
+  j["notes"] = a.notes;
+  return j;
+}
+
 }  // namespace
 
 const char* safety_note() {
@@ -207,6 +271,12 @@ std::string windows_table(const std::vector<Bearing>& bearings,
 
 std::string text_summary(const RunInfo& run, const std::vector<Bearing>& bearings,
                          const std::vector<FixResult>& results) {
+  return text_summary(run, bearings, results, {});
+}
+
+std::string text_summary(const RunInfo& run, const std::vector<Bearing>& bearings,
+                         const std::vector<FixResult>& results,
+                         const std::vector<SearchArea>& areas) {
   if (!results.empty() && results.front().fix.has_window()) {
     std::size_t used = 0;
     for (const FixResult& r : results)
@@ -323,6 +393,8 @@ std::string text_summary(const RunInfo& run, const std::vector<Bearing>& bearing
           distance_text(bf.range_m), derivation_words(b, bf));
     }
   }
+  for (const SearchArea& a : areas)
+    out += "\n" + area_text(a);
   out += "\n";
   out += wrap_words(safety_note(), 90);
   out += "\n";
@@ -331,6 +403,12 @@ std::string text_summary(const RunInfo& run, const std::vector<Bearing>& bearing
 
 std::string json_summary(const RunInfo& run, const std::vector<Bearing>& bearings,
                          const std::vector<FixResult>& results) {
+  return json_summary(run, bearings, results, {});
+}
+
+std::string json_summary(const RunInfo& run, const std::vector<Bearing>& bearings,
+                         const std::vector<FixResult>& results,
+                         const std::vector<SearchArea>& areas) {
   nlohmann::ordered_json doc;
   doc["lobfix"] = run.version;
   std::size_t used = 0;
@@ -456,10 +534,91 @@ std::string json_summary(const RunInfo& run, const std::vector<Bearing>& bearing
     }
     doc["fixes"].push_back(j);
   }
+  if (!areas.empty()) {
+    doc["search_areas"] = nlohmann::ordered_json::array();
+    for (const SearchArea& a : areas)
+      doc["search_areas"].push_back(area_json(a));
+  }
   doc["caution"] = safety_note();
   // Names come from the user's files; bytes that are not UTF-8 are written as U+FFFD rather
   // than failing the whole summary (the readers report such names too).
   return doc.dump(2, ' ', false, nlohmann::ordered_json::error_handler_t::replace) + "\n";
+}
+
+std::string segments_table(const SearchArea& a) {
+  std::string out =
+      fmt::format("{:>4}  {:<5} {:<18} {:>7} {:>8} {:>9} {:>8}  {}\n", "rank", "id",
+                  "MGRS (centre)", "POA", "cum.", "area km2", "squares", "searched (POD)");
+  for (const SearchSegment& s : a.plan.segments) {
+    std::string searched;
+    for (const double pod : s.pods)
+      searched += (searched.empty() ? "" : ", ") + fmt::format("{:.0f}%", 100.0 * pod);
+    out += fmt::format("{:>4}  {:<5} {:<18} {:>7} {:>8} {:>9.3f} {:>8}  {}\n", s.rank, s.id,
+                       spaced_mgrs(s.mgrs), percent_text(s.poa), percent_text(s.cumulative_poa),
+                       s.area_m2 / 1e6, s.squares, searched.empty() ? "-" : searched);
+  }
+  out += fmt::format("{:>4}  {:<5} {:<18} {:>7}\n", "", "rest", "outside the segments",
+                     percent_text(a.plan.rest_poa));
+  return out;
+}
+
+std::string area_text(const SearchArea& a) {
+  std::string out =
+      "Search area" + (a.signal.empty() ? std::string() : " of signal '" + a.signal + "'") + "\n";
+  if (!a.map.ok) {
+    out += labelled("Map", "none: " + a.map.message);
+    return out;
+  }
+  const UtmGrid& g = a.map.grid;
+  out += labelled("Map",
+                  fmt::format("{} x {} cells of {} m (UTM {}{}, EPSG:{}), {:.1f} km a side; "
+                              "{} bearings, {:.0f}% of each allowed to be wild",
+                              g.columns, g.rows, g.cell_m, g.zone.zone, g.zone.northp ? 'N' : 'S',
+                              g.zone.epsg(), g.columns * g.cell_m / 1000.0, a.map.bearings,
+                              100.0 * a.map.wild_fraction));
+  for (const HpdRegion& r : a.regions) {
+    out += labelled("Region",
+                    fmt::format("{:.0f}%: {:.3f} km2 in {} part{}", 100.0 * r.probability,
+                                r.area_m2 / 1e6, r.parts.size(), r.parts.size() == 1 ? "" : "s"));
+  }
+  for (const RegionComparison& c : a.comparisons)
+    out += labelled("Compare", c.advice);
+  for (const std::string& n : a.notes)
+    out += labelled("Note", n);
+  out += fmt::format(
+      "\nSearch segments ({} m squares on the UTM/MGRS grid) covering the {:.0f}% "
+      "region, by POA:\n",
+      a.plan.side_m, 100.0 * a.plan.region_probability);
+  out += segments_table(a);
+  return out;
+}
+
+std::string segments_csv(const std::vector<SearchArea>& areas) {
+  std::string out =
+      "signal,rank,id,mgrs,lat,lon,poa,cumulative_poa,initial_poa,area_m2,squares,pods\n";
+  const auto quoted = [](const std::string& v) {
+    if (v.find_first_of(",\"\n") == std::string::npos)
+      return v;
+    std::string q = "\"";
+    for (const char c : v)
+      q += c == '"' ? std::string("\"\"") : std::string(1, c);
+    return q + "\"";
+  };
+  for (const SearchArea& a : areas) {
+    for (const SearchSegment& s : a.plan.segments) {
+      std::string pods;
+      for (const double pod : s.pods)
+        pods += (pods.empty() ? "" : ";") + fmt::format("{:.4g}", pod);
+      out += fmt::format("{},{},{},{},{:.7f},{:.7f},{:.6f},{:.6f},{:.6f},{:.0f},{},{}\n",
+                         quoted(a.signal), s.rank, s.id, s.mgrs, s.centre.lat_deg, s.centre.lon_deg,
+                         s.poa, s.cumulative_poa, s.initial_poa, s.area_m2, s.squares, pods);
+    }
+    if (a.map.ok) {
+      out += fmt::format("{},,rest,,,,{:.6f},,{:.6f},,,\n", quoted(a.signal), a.plan.rest_poa,
+                         a.plan.initial_rest_poa);
+    }
+  }
+  return out;
 }
 
 }  // namespace lobfix

@@ -6,6 +6,7 @@
 #include <vector>
 
 #include "lobfix/bearing.hpp"
+#include "lobfix/search_area.hpp"
 #include "lobfix/uncertainty.hpp"
 
 namespace lobfix {
@@ -43,5 +44,35 @@ void write_geojson(const std::string& path, const std::vector<Bearing>& bearings
 /// @throws OutputError when it cannot be written (the message names `path`).
 void write_kml(const std::string& path, const std::vector<Bearing>& bearings,
                const std::vector<FixResult>& results, const ExportOptions& options = {});
+
+/// The same with the search areas: the highest-density regions (kind "region", one
+/// MultiPolygon or Polygon per probability) and the search segments (kind "segment", with id,
+/// rank, POA, cumulative POA, POA before the searches, POD, MGRS label, area and centre).
+void write_geojson(const std::string& path, const std::vector<Bearing>& bearings,
+                   const std::vector<FixResult>& results, const std::vector<SearchArea>& areas,
+                   const ExportOptions& options = {});
+/// KML with the search areas in folders "regions" and "segments".
+void write_kml(const std::string& path, const std::vector<Bearing>& bearings,
+               const std::vector<FixResult>& results, const std::vector<SearchArea>& areas,
+               const ExportOptions& options = {});
+
+/// A GeoPackage (OGC 12-128r18) with one layer per kind: stations and fixes (points), rays
+/// and tracks (multi-line strings), ellipses, regions and segments (multi-polygons), WGS 84,
+/// each feature with a name and description besides its fields. Atomic like write_geojson.
+/// @throws InputError for invalid options. @throws OutputError when it cannot be written.
+void write_geopackage(const std::string& path, const std::vector<Bearing>& bearings,
+                      const std::vector<FixResult>& results, const std::vector<SearchArea>& areas,
+                      const ExportOptions& options = {});
+
+/// GPX 1.1 waypoints for teams that navigate by GPS: each fix ("FIX", or "FIX1", "FIX2"...
+/// with several signals) and each segment's centre (its id, e.g. "S01", or "1S01"), names
+/// of at most 10 characters, the POA and MGRS in the comment and description. Atomic.
+/// @throws OutputError when it cannot be written.
+void write_gpx_waypoints(const std::string& path, const std::vector<FixResult>& results,
+                         const std::vector<SearchArea>& areas);
+
+/// Write `text` to `path` atomically (temporary name beside it, flushed, renamed).
+/// @throws OutputError when it cannot be written.
+void write_text_file(const std::string& path, const std::string& text);
 
 }  // namespace lobfix

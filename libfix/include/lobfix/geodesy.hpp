@@ -79,15 +79,18 @@ struct UtmZone {
 /// The standard zone of a point (with the Norway and Svalbard exceptions, as MGRS uses).
 /// @throws InputError if the latitude is outside [-90, 90].
 UtmZone utm_zone_of(const LatLon& point);
-/// Easting and northing (m) of `point` in `zone`, which need not be its standard one (UTM
-/// extends some way past its 6 degrees, accurately up to about 3,000 km from the central
-/// meridian). Also the meridian convergence (deg) there.
+/// Easting and northing (m) of `point` in `zone`, which need not be its standard one: the
+/// zone's transverse Mercator projection is used up to 35 degrees of longitude from its
+/// central meridian (eastings may then fall outside 0-1,000 km), accurate to nanometres
+/// (Karney 2011). Also the meridian convergence (deg) and the point scale there. UPS (zone
+/// 0) is limited to its own hemisphere.
 struct UtmPoint {
   double easting_m = 0.0;
   double northing_m = 0.0;
   double convergence_deg = 0.0;
+  double scale = 1.0;  ///< point scale k: grid distance = k x ground distance, locally
 };
-/// @throws InputError if the point is beyond the zone's reach (GeographicLib refuses it).
+/// @throws InputError if the point is beyond the zone's reach.
 UtmPoint utm_forward(const UtmZone& zone, const LatLon& point);
 /// The point at easting_m, northing_m of `zone`. @throws InputError when out of reach.
 LatLon utm_reverse(const UtmZone& zone, double easting_m, double northing_m);

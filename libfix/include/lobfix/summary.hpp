@@ -8,6 +8,7 @@
 #include "lobfix/bearing.hpp"
 #include "lobfix/error.hpp"
 #include "lobfix/robust.hpp"
+#include "lobfix/search_area.hpp"
 #include "lobfix/uncertainty.hpp"
 
 namespace lobfix {
@@ -35,6 +36,24 @@ std::string text_summary(const RunInfo& run, const std::vector<Bearing>& bearing
 /// (schema in docs/outputs.md). Numbers are plain JSON numbers; NaN never appears.
 std::string json_summary(const RunInfo& run, const std::vector<Bearing>& bearings,
                          const std::vector<FixResult>& results);
+
+/// The same with a search-area section per signal (map, regions, their comparison with the
+/// ellipses, the segment table) before the cautions.
+std::string text_summary(const RunInfo& run, const std::vector<Bearing>& bearings,
+                         const std::vector<FixResult>& results,
+                         const std::vector<SearchArea>& areas);
+/// The same with "search_areas": [...] (docs/outputs.md).
+std::string json_summary(const RunInfo& run, const std::vector<Bearing>& bearings,
+                         const std::vector<FixResult>& results,
+                         const std::vector<SearchArea>& areas);
+
+/// The search-area section of the text summary.
+std::string area_text(const SearchArea& area);
+/// The team list: one line per segment (rank, id, MGRS of the centre, POA, cumulative POA,
+/// area, squares, searches), then the rest.
+std::string segments_table(const SearchArea& area);
+/// The team list as CSV (RFC 4180), one row per segment and a "rest" row per signal.
+std::string segments_csv(const std::vector<SearchArea>& areas);
 
 /// The cautions printed with every result and carried by the report.
 const char* safety_note();

@@ -55,6 +55,9 @@ void write_atomically(const std::string& path, const char* driver_name,
                       const std::function<void(GDALDataset&)>& fill, bool as_kmz = false,
                       const DatasetShape& shape = {});
 
+/// Write `bytes` to `path` the same way (temporary name, flushed, renamed).
+void write_file_atomically(const std::string& path, const std::string& bytes);
+
 /// The extension of `path` in lower case, with its dot ("" when none).
 std::string lower_extension(const std::string& path);
 

@@ -1,0 +1,180 @@
+#include "area_command.hpp"
+
+#include <filesystem>
+#include <iostream>
+
+#include "exit_codes.hpp"
+#include "lobfix/error.hpp"
+#include "lobfix/export.hpp"
+#include "lobfix/raster.hpp"
+#include "lobfix/search_area.hpp"
+#include "lobfix/summary.hpp"
+
+namespace lobfix_app {
+
+namespace {
+
+// One GeoTIFF per signal: the name as given for the first, "-2", "-3"... before the
+// extension for the others.
+std::string numbered(const std::string& path, std::size_t n) {
+  if (n == 0)
+    return path;
+  const std::filesystem::path p(path);
+  return (p.parent_path() /
+          (p.stem().string() + "-" + std::to_string(n + 1) + p.extension().string()))
+      .string();
+}
+
+}  // namespace
+
+CLI::App* add_area_command(CLI::App& app, AreaArgs& args) {
+  CLI::App* cmd = app.add_subcommand(
+      "area",
+      "Solve the bearings as 'solve' does, then map where the transmitter may be: a "
+      "probability map, its highest-probability regions, and search segments on the UTM/MGRS "
+      "grid ranked by their probability of area (POA), for the teams. See "
+      "docs/search-area.md.");
+  add_input_options(cmd, args.input);
+  add_fix_options(cmd, args.fix, /*with_windows=*/false);
+  cmd->add_option("--segment-m", args.segment_m, "side of a search segment (m, on the UTM grid)")
+      ->capture_default_str()
+      ->check(CLI::Range(10.0, 100000.0));
+  cmd->add_option("--cell-m", args.cell_m,
+                  "side of a map cell (m); must divide --segment-m; 0 picks one")
+      ->capture_default_str()
+      ->check(CLI::Range(0.0, 100000.0));
+  cmd->add_option("--area-km", args.area_km,
+                  "side of the square mapped around the fix (km); 0 sizes it from the fix's "
+                  "uncertainty. The transmitter is assumed to lie inside it.")
+      ->capture_default_str()
+      ->check(CLI::Range(0.0, 2000.0));
+  cmd->add_option("--regions", args.regions,
+                  "probabilities of the highest-probability regions, comma-separated")
+      ->delimiter(',')
+      ->capture_default_str();
+  cmd->add_option("--segments-cover", args.segments_cover,
+                  "the segments cover the region of this probability")
+      ->capture_default_str()
+      ->check(CLI::Range(0.5, 0.999));
+  cmd->add_option("--wild-fraction", args.wild_fraction,
+                  "chance that any one bearing is wild (a reflection): each bearing's "
+                  "likelihood keeps this much spread over all directions")
+      ->capture_default_str()
+      ->check(CLI::Range(0.0, 0.49));
+  cmd->add_option("--merge-below", args.merge_below,
+                  "a square holding less POA than this joins its best neighbouring segment")
+      ->capture_default_str()
+      ->check(CLI::Range(0.0, 0.5));
+  cmd->add_option("--searched", args.searched,
+                  "an unsuccessful search: SEGMENT:POD, e.g. S01:0.7 or S02:60% (segment id or "
+                  "MGRS label); repeat for several, in the order searched")
+      ->take_all()
+      ->allow_extra_args(false);
+  cmd->add_option("--geotiff", args.geotiff, "write the probability per cell as a GeoTIFF");
+  cmd->add_option("--geojson", args.geojson,
+                  "write stations, rays, fix, ellipses, regions and segments as GeoJSON");
+  cmd->add_option("--kml", args.kml, "write the same as KML");
+  cmd->add_option("--gpkg", args.gpkg, "write every layer to a GeoPackage");
+  cmd->add_option("--gpx", args.gpx, "write GPX waypoints of the fix and segment centres");
+  cmd->add_option("--segments-csv", args.segments_csv, "write the team list of segments as CSV");
+  cmd->add_flag("--json", args.json, "print a machine-readable JSON summary instead of text");
+  cmd->add_flag("-q,--quiet", args.quiet, "print no summary (files and errors only)");
+  cmd->add_option("--ray-length-km", args.ray_length_km,
+                  "length of the drawn rays; 0 draws each a little past its fix")
+      ->capture_default_str()
+      ->check(CLI::Range(0.0, 20000.0));
+  return cmd;
+}
+
+int run_area(const AreaArgs& args) {
+  using namespace lobfix;
+  SearchAreaOptions options;
+  options.map.cell_m = args.cell_m;
+  options.map.align_m = args.segment_m;
+  options.map.half_side_m = args.area_km * 500.0;
+  options.map.wild_fraction = args.wild_fraction;
+  options.region_probabilities = args.regions;
+  options.segments.region_probability = args.segments_cover;
+  options.segments.merge_below_poa = args.merge_below;
+  for (const std::string& text : args.searched) {
+    const auto report = parse_search_report(text);
+    if (!report) {
+      std::cerr << "lobfix: --searched " << text
+                << ": write SEGMENT:POD, e.g. S01:0.7 or S01:70%\n";
+      return kExitUsage;
+    }
+    options.searched.push_back(*report);
+  }
+  for (const double p : args.regions) {
+    if (!(p > 0.0 && p < 1.0)) {
+      std::cerr << "lobfix: --regions " << p << " is not a probability between 0 and 1\n";
+      return kExitUsage;
+    }
+  }
+
+  LoadedInput loaded;
+  if (const int rc = load_bearings(args.input, loaded); rc != kExitOk)
+    return rc;
+  SolvedRun solved;
+  if (const int rc = solve_bearings(args.fix, loaded.bearings, solved); rc != kExitOk)
+    return rc;
+
+  std::vector<SearchArea> areas;
+  try {
+    for (const FixResult& r : solved.results)
+      areas.push_back(make_search_area(loaded.bearings, r, options));
+  } catch (const InputError& e) {
+    std::cerr << "lobfix: " << e.diagnostic().reason << "\n";
+    return kExitUsage;
+  }
+  bool all_mapped = true;
+  for (const SearchArea& a : areas) {
+    if (!a.map.ok && solved.results.size() == areas.size()) {
+      all_mapped = false;
+      std::cerr << "lobfix: no search area for "
+                << (a.signal.empty() ? std::string("the bearings") : "signal '" + a.signal + "'")
+                << ": " << a.map.message << "\n";
+    }
+  }
+
+  if (solved.any_fixed) {
+    ExportOptions export_options;
+    export_options.ray_length_m = args.ray_length_km * 1000.0;
+    try {
+      if (!args.geotiff.empty()) {
+        std::size_t n = 0;
+        for (const SearchArea& a : areas) {
+          if (!a.map.ok)
+            continue;
+          GeoTiffOptions tiff;
+          tiff.description = "probability per cell, signal " + (a.signal.empty() ? "-" : a.signal);
+          const std::vector<float> cells(a.map.mass.begin(), a.map.mass.end());
+          write_geotiff(numbered(args.geotiff, n++), a.map.grid, cells, tiff);
+        }
+      }
+      if (!args.geojson.empty())
+        write_geojson(args.geojson, loaded.bearings, solved.results, areas, export_options);
+      if (!args.kml.empty())
+        write_kml(args.kml, loaded.bearings, solved.results, areas, export_options);
+      if (!args.gpkg.empty())
+        write_geopackage(args.gpkg, loaded.bearings, solved.results, areas, export_options);
+      if (!args.gpx.empty())
+        write_gpx_waypoints(args.gpx, solved.results, areas);
+      if (!args.segments_csv.empty())
+        write_text_file(args.segments_csv, segments_csv(areas));
+    } catch (const OutputError& e) {
+      std::cerr << "lobfix: " << e.what() << "\n";
+      return kExitOutputError;
+    }
+  }
+
+  const RunInfo run = make_run_info(args.input, loaded, solved);
+  if (args.json) {
+    std::cout << json_summary(run, loaded.bearings, solved.results, areas);
+  } else if (!args.quiet) {
+    std::cout << text_summary(run, loaded.bearings, solved.results, areas);
+  }
+  return solved.all_fixed && all_mapped ? kExitOk : kExitNoFix;
+}
+
+}  // namespace lobfix_app

@@ -1,0 +1,38 @@
+// `lobfix area`: bearings in; the probability map, its highest-density regions and ranked
+// search segments out, for the teams.
+#pragma once
+
+#include <CLI/CLI.hpp>
+#include <string>
+#include <vector>
+
+#include "pipeline.hpp"
+
+namespace lobfix_app {
+
+struct AreaArgs {
+  InputArgs input;
+  FixArgs fix;
+  double cell_m = 0.0;
+  double segment_m = 250.0;
+  double area_km = 0.0;
+  std::vector<double> regions{0.5, 0.95};
+  double segments_cover = 0.95;
+  double wild_fraction = 0.01;
+  double merge_below = 0.002;
+  std::vector<std::string> searched;
+  std::string geotiff;
+  std::string geojson;
+  std::string kml;
+  std::string gpkg;
+  std::string gpx;
+  std::string segments_csv;
+  bool json = false;
+  bool quiet = false;
+  double ray_length_km = 0.0;
+};
+
+CLI::App* add_area_command(CLI::App& app, AreaArgs& args);
+int run_area(const AreaArgs& args);
+
+}  // namespace lobfix_app

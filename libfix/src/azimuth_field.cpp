@@ -1,0 +1,139 @@
+// Fast geodesic azimuths over a map: see detail/azimuth_field.hpp for the notation.
+#include "detail/azimuth_field.hpp"
+
+#include <algorithm>
+#include <cmath>
+
+#include "lobfix/error.hpp"
+
+namespace lobfix::detail {
+
+namespace {
+
+constexpr double kPi = 3.14159265358979323846;
+constexpr double kDeg = kPi / 180.0;
+
+double wrap_pi(double a) {
+  a = std::remainder(a, 2.0 * kPi);
+  return a <= -kPi ? a + 2.0 * kPi : a;
+}
+
+}  // namespace
+
+LatticeNodes::LatticeNodes(const UtmGrid& grid)
+    : zone_(grid.zone),
+      west_(grid.west_m),
+      south_(grid.north_m - grid.rows * grid.cell_m),
+      width_(grid.columns * grid.cell_m),
+      height_(grid.rows * grid.cell_m) {}
+
+const std::vector<LatLon>& LatticeNodes::nodes(int n) {
+  if (static_cast<int>(by_n_.size()) <= n)
+    by_n_.resize(static_cast<std::size_t>(n) + 1);
+  std::vector<LatLon>& v = by_n_[static_cast<std::size_t>(n)];
+  if (v.empty()) {
+    v.reserve(static_cast<std::size_t>(n) * static_cast<std::size_t>(n));
+    for (int j = 0; j < n; ++j) {
+      for (int i = 0; i < n; ++i) {
+        v.push_back(geographic(west_ + i * width_ / (n - 1), south_ + j * height_ / (n - 1)));
+      }
+    }
+  }
+  return v;
+}
+
+LatLon LatticeNodes::geographic(double easting_m, double northing_m) const {
+  return utm_reverse(zone_, easting_m, northing_m);
+}
+
+AzimuthField::AzimuthField(const LatLon& station, LatticeNodes& lattice, double tolerance_rad)
+    : west_(lattice.west()), south_(lattice.south()) {
+  double convergence_rad = 0.0;
+  try {
+    const UtmPoint u = utm_forward(lattice.zone(), station);
+    planar_ = true;
+    station_e_ = u.easting_m;
+    station_n_ = u.northing_m;
+    convergence_rad = u.convergence_deg * kDeg;
+  } catch (const InputError&) {
+    planar_ = false;  // beyond the zone's reach: interpolate the azimuth itself
+  }
+  const LatLon centre =
+      lattice.geographic(west_ + 0.5 * lattice.width(), south_ + 0.5 * lattice.height());
+  far_distance_m_ = geodesic_inverse(station, centre).s12_m;
+
+  // The exact correction at one point: alpha - t (planar) or alpha unwrapped near `ref`.
+  const auto exact_c = [&](const LatLon& p, double e, double n, double ref) {
+    const double alpha = geodesic_inverse_azimuths(station, p).azi1_deg * kDeg;
+    if (planar_) {
+      const double de = e - station_e_;
+      const double dn = n - station_n_;
+      if (std::hypot(de, dn) < 1e-3)
+        return convergence_rad;  // the limit at the station: grid north is gamma east of true
+      return wrap_pi(alpha - std::atan2(de, dn));
+    }
+    return ref + wrap_pi(alpha - ref);
+  };
+
+  for (n_ = 5;; n_ = 2 * n_ - 1) {
+    const std::vector<LatLon>& nodes = lattice.nodes(n_);
+    step_e_ = lattice.width() / (n_ - 1);
+    step_n_ = lattice.height() / (n_ - 1);
+    c_.assign(nodes.size(), 0.0);
+    double ref = 0.0;
+    for (int j = 0; j < n_; ++j) {
+      for (int i = 0; i < n_; ++i) {
+        const std::size_t k = static_cast<std::size_t>(j) * static_cast<std::size_t>(n_) +
+                              static_cast<std::size_t>(i);
+        c_[k] = exact_c(nodes[k], west_ + i * step_e_, south_ + j * step_n_, ref);
+        ref = c_[k];  // unwrap along the lattice (far stations: a smooth, small range)
+      }
+    }
+    // Check at the centres of the lattice's cells (all of them up to 8 x 8, else an even
+    // sample of 64), where bilinear interpolation is worst.
+    const int cells = n_ - 1;
+    const int stride = std::max(1, cells / 8);
+    max_error_rad_ = 0.0;
+    for (int j = stride / 2; j < cells; j += stride) {
+      for (int i = stride / 2; i < cells; i += stride) {
+        const double e = west_ + (i + 0.5) * step_e_;
+        const double n = south_ + (j + 0.5) * step_n_;
+        const LatLon p = lattice.geographic(e, n);
+        const double exact = geodesic_inverse_azimuths(station, p).azi1_deg * kDeg;
+        const double error = std::fabs(wrap_pi(azimuth_rad(e, n) - exact));
+        max_error_rad_ = std::max(max_error_rad_, error);
+      }
+    }
+    if (max_error_rad_ <= tolerance_rad || n_ >= 129)
+      break;
+  }
+}
+
+double AzimuthField::correction(double easting_m, double northing_m) const {
+  const double x = std::clamp((easting_m - west_) / step_e_, 0.0, n_ - 1.0);
+  const double y = std::clamp((northing_m - south_) / step_n_, 0.0, n_ - 1.0);
+  const int i = std::min(static_cast<int>(x), n_ - 2);
+  const int j = std::min(static_cast<int>(y), n_ - 2);
+  const double fx = x - i;
+  const double fy = y - j;
+  const std::size_t k =
+      static_cast<std::size_t>(j) * static_cast<std::size_t>(n_) + static_cast<std::size_t>(i);
+  const std::size_t up = static_cast<std::size_t>(n_);
+  return (1 - fy) * ((1 - fx) * c_[k] + fx * c_[k + 1]) +
+         fy * ((1 - fx) * c_[k + up] + fx * c_[k + up + 1]);
+}
+
+double AzimuthField::azimuth_rad(double easting_m, double northing_m) const {
+  const double c = correction(easting_m, northing_m);
+  if (!planar_)
+    return c;
+  return std::atan2(easting_m - station_e_, northing_m - station_n_) + c;
+}
+
+double AzimuthField::distance_m(double easting_m, double northing_m) const {
+  if (!planar_)
+    return far_distance_m_;
+  return std::hypot(easting_m - station_e_, northing_m - station_n_);
+}
+
+}  // namespace lobfix::detail
