@@ -104,7 +104,7 @@ std::vector<CellPolygon> trace_cells(const std::vector<char>& inside, int column
       ring.push_back(end);
       if (end.x == ring.front().x && end.y == ring.front().y && ring.size() > 2) {
         // Closed, unless this corner is a saddle with another way out still unused that
-        // belongs to this ring: rings here never pass a corner twice (right turns), so done.
+        // belongs to this ring: rings here never pass a corner twice (left turns), so done.
         break;
       }
       const int dx = end.x - edges[e].from.x;
@@ -115,8 +115,9 @@ std::vector<CellPolygon> trace_cells(const std::vector<char>& inside, int column
           continue;
         const int nx = edges[candidate].to.x - end.x;
         const int ny = edges[candidate].to.y - end.y;
-        // At a saddle corner take the right turn: (dx, dy) turned clockwise is (dy, -dx).
-        if (chosen == edges.size() || (nx == dy && ny == -dx))
+        // At a saddle corner take the left turn, toward the inside, which keeps the two
+        // parts apart: (dx, dy) turned counter-clockwise is (-dy, dx).
+        if (chosen == edges.size() || (nx == -dy && ny == dx))
           chosen = candidate;
       }
       if (chosen == edges.size())

@@ -24,7 +24,7 @@ struct CellPolygon {
 
 /// The polygons of the union of the cells with inside[r * columns + c] != 0 (row 0 at the
 /// top). Cells touching only at a corner belong to different polygons (the boundary turns
-/// right at such a corner), so every ring is simple.
+/// toward the inside at such a corner), so every ring is simple.
 std::vector<CellPolygon> trace_cells(const std::vector<char>& inside, int columns, int rows);
 
 }  // namespace lobfix::detail
