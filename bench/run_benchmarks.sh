@@ -5,7 +5,8 @@
 #
 # 1. Configures a Release build in build-bench/ with -DLOBFIX_BUILD_BENCH=ON and builds
 #    lobfix_bench and the lobfix tool.
-# 2. lobfix_bench (Google Benchmark): solve_fix at 30 / 1,000 / 10,000 bearings, CSV parsing.
+# 2. lobfix_bench (Google Benchmark): solve_fix at 30 / 1,000 / 10,000 bearings, CSV parsing;
+#    lobfix_bench_planning: a 500 x 500 coverage map of 10 stations, 1,000 next-bearing spots.
 # 3. The whole `lobfix solve FILE --quiet` process on 1,000 and 10,000 synthetic bearings
 #    (bench/make_bearings.py), with hyperfine if installed, else a loop of /usr/bin/time.
 # 4. The comparison yardstick (bench/yardstick_scipy.py, not part of lobfix) on the same files.
@@ -36,11 +37,13 @@ launcher=()
 if command -v ccache >/dev/null; then launcher=(-DCMAKE_CXX_COMPILER_LAUNCHER=ccache); fi
 cmake -S "$ROOT" -B "$BUILD_DIR" -DCMAKE_BUILD_TYPE=Release -DLOBFIX_BUILD_BENCH=ON \
   -DLOBFIX_BUILD_TESTS=OFF "${launcher[@]}"
-cmake --build "$BUILD_DIR" -j"$JOBS" --target lobfix_bench lobfix_app
+cmake --build "$BUILD_DIR" -j"$JOBS" --target lobfix_bench lobfix_bench_planning lobfix_app
 LOBFIX="$BUILD_DIR/lobfix"  # target lobfix_app, OUTPUT_NAME lobfix
 [[ -x "$LOBFIX" ]] || LOBFIX="$BUILD_DIR/apps/lobfix/lobfix"
 BENCH="$(find "$BUILD_DIR" -type f -name lobfix_bench -perm -u+x | head -n 1)"
-[[ -x "$LOBFIX" && -x "$BENCH" ]] || { echo "run_benchmarks.sh: binaries not found" >&2; exit 1; }
+BENCH_PLANNING="$(find "$BUILD_DIR" -type f -name lobfix_bench_planning -perm -u+x | head -n 1)"
+[[ -x "$LOBFIX" && -x "$BENCH" && -x "$BENCH_PLANNING" ]] ||
+  { echo "run_benchmarks.sh: binaries not found" >&2; exit 1; }
 
 mkdir -p "$OUT" "$DATA"
 say "machine"
@@ -55,6 +58,11 @@ say "machine"
 say "lobfix_bench (Google Benchmark, 5 repetitions)"
 "$BENCH" --benchmark_repetitions=5 --benchmark_report_aggregates_only=true \
   --benchmark_out="$OUT/lobfix_bench.json" --benchmark_out_format=json | tee "$OUT/lobfix_bench.txt"
+
+say "lobfix_bench_planning (Google Benchmark, 5 repetitions)"
+"$BENCH_PLANNING" --benchmark_repetitions=5 --benchmark_report_aggregates_only=true \
+  --benchmark_out="$OUT/lobfix_bench_planning.json" --benchmark_out_format=json |
+  tee "$OUT/lobfix_bench_planning.txt"
 
 say "synthetic bearing files (bench/make_bearings.py)"
 for n in 1000 10000 100000; do

@@ -4,12 +4,16 @@
 #include <iostream>
 
 #include "area_command.hpp"
+#include "coverage_command.hpp"
+#include "evaluate_command.hpp"
 #include "exit_codes.hpp"
+#include "next_command.hpp"
+#include "simulate_command.hpp"
 #include "solve_command.hpp"
 
-// Bad input and unwritable outputs are caught where they arise (solve_command.cpp); any other
-// exception is a lobfix bug (tier 3, docs/architecture.md) and should stop the program with
-// std::terminate's message. NOLINTNEXTLINE(bugprone-exception-escape)
+// Bad input and unwritable outputs are caught where they arise (the *_command.cpp files);
+// any other exception is a lobfix bug (tier 3, docs/architecture.md) and should stop the
+// program with std::terminate's message. NOLINTNEXTLINE(bugprone-exception-escape)
 int main(int argc, char** argv) {
   CLI::App app{
       "lobfix: turns lines of bearing from several stations into a transmitter fix with a "
@@ -18,8 +22,9 @@ int main(int argc, char** argv) {
   app.set_version_flag("--version", std::string("lobfix ") + LOBFIX_VERSION);
   app.require_subcommand(1);
   app.footer(
-      "Run 'lobfix solve --help' for the bearing file format and options, 'lobfix area "
-      "--help' for the search area.\n"
+      "Run 'lobfix solve --help' for the bearing file format and options; 'lobfix area' maps "
+      "the search area and cuts it into segments (docs/search-area.md); 'lobfix next', "
+      "'coverage', 'simulate' and 'evaluate' plan the hunt (docs/planning.md).\n"
       "Exit codes: 0 fix found, 1 bad input, 2 bad command line, 3 no fix for some "
       "signal, 4 output not written.");
 
@@ -27,6 +32,14 @@ int main(int argc, char** argv) {
   CLI::App* solve = lobfix_app::add_solve_command(app, solve_args);
   lobfix_app::AreaArgs area_args;
   CLI::App* area = lobfix_app::add_area_command(app, area_args);
+  lobfix_app::NextArgs next_args;
+  CLI::App* next = lobfix_app::add_next_command(app, next_args);
+  lobfix_app::CoverageArgs coverage_args;
+  CLI::App* coverage = lobfix_app::add_coverage_command(app, coverage_args);
+  lobfix_app::SimulateArgs simulate_args;
+  CLI::App* simulate = lobfix_app::add_simulate_command(app, simulate_args);
+  lobfix_app::EvaluateArgs evaluate_args;
+  CLI::App* evaluate = lobfix_app::add_evaluate_command(app, evaluate_args);
 
   try {
     app.parse(argc, argv);
@@ -44,5 +57,13 @@ int main(int argc, char** argv) {
     return lobfix_app::run_solve(solve_args);
   if (area->parsed())
     return lobfix_app::run_area(area_args);
+  if (next->parsed())
+    return lobfix_app::run_next(next_args);
+  if (coverage->parsed())
+    return lobfix_app::run_coverage(coverage_args);
+  if (simulate->parsed())
+    return lobfix_app::run_simulate(simulate_args);
+  if (evaluate->parsed())
+    return lobfix_app::run_evaluate(evaluate_args);
   return lobfix_app::kExitUsage;
 }
