@@ -6,6 +6,8 @@
 // Gaussian noise of 2 deg, drawn from a seeded std::mt19937_64, so every run sees the same
 // data. All data are built outside the timed loops.
 //
+// The search area (posterior map, regions, segments) uses the same bearings.
+//
 // Run: bench/run_benchmarks.sh (Release build); figures in docs/performance.md.
 #include <benchmark/benchmark.h>
 #include <GeographicLib/Geodesic.hpp>
@@ -23,7 +25,9 @@
 #include "lobfix/bearing.hpp"
 #include "lobfix/fix.hpp"
 #include "lobfix/geodesy.hpp"
+#include "lobfix/posterior.hpp"
 #include "lobfix/reader.hpp"
+#include "lobfix/search_area.hpp"
 #include "lobfix/solver.hpp"
 #include "lobfix/time.hpp"
 
@@ -91,6 +95,63 @@ double miss_distance_m(const lobfix::Fix& fix) {
       lobfix::geodesic_inverse(fix.position, lobfix::LatLon{kTruthLatDeg, kTruthLonDeg});
   return g.s12_m;
 }
+
+// The search area of 1,000 bearings over a 10 km square at 10 m cells (1,000 x 1,000 cells):
+// the probability map (coarse pass, refinement), the 50% and 95% regions with their
+// outlines, and the 250 m segments, as `lobfix area --cell-m 10 --area-km 10` makes them.
+lobfix::SearchAreaOptions area_options_10km() {
+  lobfix::SearchAreaOptions o;
+  o.map.cell_m = 10.0;
+  o.map.half_side_m = 5000.0;
+  o.map.align_m = 250.0;
+  return o;
+}
+
+void BM_SearchArea(benchmark::State& state) {
+  const std::vector<lobfix::Bearing> bearings =
+      make_bearings(static_cast<std::size_t>(state.range(0)));
+  lobfix::FixResult result;
+  result.fix = lobfix::solve_fix(bearings, {});
+  result.uncertainty = lobfix::describe_uncertainty(result.fix, {});
+  const lobfix::SearchAreaOptions options = area_options_10km();
+  lobfix::SearchArea last;
+  for (auto _ : state) {
+    lobfix::SearchArea area = lobfix::make_search_area(bearings, result, options);
+    benchmark::DoNotOptimize(area);
+    last = std::move(area);
+  }
+  if (!last.map.ok) {
+    state.SkipWithError(("no map: " + last.map.message).c_str());
+    return;
+  }
+  state.counters["cells"] = static_cast<double>(last.map.grid.size());
+  state.counters["cells_evaluated"] = static_cast<double>(last.map.cells_evaluated);
+  state.counters["segments"] = static_cast<double>(last.plan.segments.size());
+  state.counters["max_az_err_deg"] = last.map.max_azimuth_error_deg;
+}
+BENCHMARK(BM_SearchArea)->Arg(1000)->Unit(benchmark::kMillisecond);
+
+// The brute-force comparison: exact geodesic azimuths (GeographicLib Inverse) for every cell
+// and bearing, no coarse pass, on a 40 x 40 block of the same 10 m grid at the fix. Time per
+// cell times 1,000,000 cells is what the 10 km square would take (docs/performance.md).
+void BM_ExactMapBlock(benchmark::State& state) {
+  const std::vector<lobfix::Bearing> bearings =
+      make_bearings(static_cast<std::size_t>(state.range(0)));
+  const lobfix::Fix fix = lobfix::solve_fix(bearings, {});
+  lobfix::PosteriorOptions o = area_options_10km().map;
+  const lobfix::PosteriorMap full = lobfix::posterior_map(bearings, fix, o);
+  lobfix::UtmGrid block = full.grid;
+  block.columns = block.rows = 40;
+  block.west_m += 480 * block.cell_m;
+  block.north_m -= 480 * block.cell_m;
+  for (auto _ : state) {
+    lobfix::PosteriorMap m = lobfix::posterior_map_exact(bearings, fix, block, o.wild_fraction);
+    benchmark::DoNotOptimize(m);
+  }
+  state.counters["cells"] = static_cast<double>(block.size());
+  state.SetItemsProcessed(state.iterations() * static_cast<std::int64_t>(block.size()));
+}
+BENCHMARK(BM_ExactMapBlock)->Arg(1000)->Unit(benchmark::kMillisecond);
 
 // One full solve_fix (start point, Ceres, covariance, per-bearing table) per iteration.
 void BM_SolveFix(benchmark::State& state) {

@@ -103,8 +103,8 @@ TEST_CASE("approximate azimuths stay within 1% of sigma of GeographicLib's Inver
       }
     }
     MESSAGE(name << ": lattice " << field.lattice_size() << ", planar " << field.planar()
-                   << ", worst error " << worst * 180 / M_PI << " deg = " << worst / sigma_rad * 100
-                   << "% of 1 deg");
+                 << ", worst error " << worst * 180 / M_PI << " deg = " << worst / sigma_rad * 100
+                 << "% of 1 deg");
     CHECK(worst < 0.01 * sigma_rad);
   }
 }
@@ -217,4 +217,36 @@ TEST_CASE("good geometry: the 95% region's area is within 5% of the 95% ellipse'
   MESSAGE(cmp.advice);
   CHECK(cmp.agree);
   CHECK_ABS(cmp.map_mass_in_ellipse, 0.95, 0.02);
+}
+
+TEST_CASE("an elongated ellipse in the Gaussian limit: the map puts its probability inside it") {
+  // Three stations within 50 deg of each other, sigma 0.5 deg, noise-free: a long, tilted
+  // ellipse (small errors make the problem nearly linear, so map and ellipse describe the
+  // same normal law). Catches any error in the ellipse's orientation against the map.
+  const LatLon t{45.37, -104.84};
+  std::vector<Bearing> b;
+  const double az[] = {200.0, 225.0, 250.0};
+  for (int i = 0; i < 3; ++i)
+    b.push_back(
+        exact_bearing("S" + std::to_string(i), around(t, az[i], 9000.0 + 1000 * i), t, 0.5));
+  const Fix fix = solve_fix(b);
+  REQUIRE(fix.ok());
+  const Uncertainty u = describe_uncertainty(fix, {});
+  PosteriorOptions o;
+  o.cell_m = 2;
+  o.align_m = 50;
+  o.wild_fraction = 0.0;
+  const PosteriorMap map = posterior_map(b, fix, o);
+  REQUIRE(map.ok);
+  const std::vector<HpdRegion> r = hpd_regions(map, {0.5, 0.95});
+  for (int k = 0; k < 2; ++k) {
+    const Ellipse& e = u.ellipses.at(static_cast<std::size_t>(k));
+    const RegionComparison cmp = compare_with_ellipse(map, fix, e, r[static_cast<std::size_t>(k)]);
+    MESSAGE("ellipse " << e.probability << " axes " << e.semi_major_m << " x " << e.semi_minor_m
+                       << " at " << e.orientation_deg << " deg: map mass inside "
+                       << cmp.map_mass_in_ellipse << ", area ratio "
+                       << cmp.region_area_m2 / cmp.ellipse_area_m2);
+    CHECK_ABS(cmp.map_mass_in_ellipse, e.probability, 0.02);
+    CHECK(cmp.agree);
+  }
 }
