@@ -4,6 +4,7 @@
 #include <iostream>
 
 #include "exit_codes.hpp"
+#include "live_command.hpp"
 #include "solve_command.hpp"
 
 // Bad input and unwritable outputs are caught where they arise (solve_command.cpp); any other
@@ -17,12 +18,16 @@ int main(int argc, char** argv) {
   app.set_version_flag("--version", std::string("lobfix ") + LOBFIX_VERSION);
   app.require_subcommand(1);
   app.footer(
-      "Run 'lobfix solve --help' for the bearing file format and options.\n"
+      "Run 'lobfix solve --help' for the bearing file format and options, 'lobfix live --help' "
+      "for\n"
+      "bearings that stream in.\n"
       "Exit codes: 0 fix found, 1 bad input, 2 bad command line, 3 no fix for some "
       "signal, 4 output not written.");
 
   lobfix_app::SolveArgs solve_args;
   CLI::App* solve = lobfix_app::add_solve_command(app, solve_args);
+  lobfix_app::LiveArgs live_args;
+  CLI::App* live = lobfix_app::add_live_command(app, live_args);
 
   try {
     app.parse(argc, argv);
@@ -38,5 +43,7 @@ int main(int argc, char** argv) {
   }
   if (solve->parsed())
     return lobfix_app::run_solve(solve_args);
+  if (live->parsed())
+    return lobfix_app::run_live(live_args);
   return lobfix_app::kExitUsage;
 }
