@@ -1,7 +1,7 @@
 #!/usr/bin/env bash
 # Runs one lobfix fuzz target for a while on a copy of its seed corpus (fuzz/README.md).
 #   fuzz/run.sh TARGET SECONDS [libFuzzer options...]
-# TARGET is csv, jsonl, nmea, gpx or time; fuzz/dict/TARGET.dict is used as the dictionary.
+# TARGET is csv, jsonl, nmea, gpx, time or live; fuzz/dict/TARGET.dict is used as the dictionary.
 # The target is (re)built first in
 # $LOBFIX_FUZZ_BUILD (default build-fuzz/); the run works in a fresh directory under
 # $LOBFIX_FUZZ_BUILD/runs/, so the committed corpus in fuzz/corpus/TARGET is never changed.
@@ -12,7 +12,7 @@ set -uo pipefail
 
 root="$(cd "$(dirname "$0")/.." && pwd)"
 build="${LOBFIX_FUZZ_BUILD:-$root/build-fuzz}"
-targets=(csv jsonl nmea gpx time)
+targets=(csv jsonl nmea gpx time live)
 
 usage() {
   echo "usage: fuzz/run.sh TARGET SECONDS [libFuzzer options...]  (TARGET: ${targets[*]})" >&2

@@ -7,6 +7,7 @@
 #include "coverage_command.hpp"
 #include "evaluate_command.hpp"
 #include "exit_codes.hpp"
+#include "live_command.hpp"
 #include "next_command.hpp"
 #include "simulate_command.hpp"
 #include "solve_command.hpp"
@@ -24,7 +25,8 @@ int main(int argc, char** argv) {
   app.footer(
       "Run 'lobfix solve --help' for the bearing file format and options; 'lobfix area' maps "
       "the search area and cuts it into segments (docs/search-area.md); 'lobfix next', "
-      "'coverage', 'simulate' and 'evaluate' plan the hunt (docs/planning.md).\n"
+      "'coverage', 'simulate' and 'evaluate' plan the hunt (docs/planning.md); 'lobfix live' "
+      "takes bearings as they stream in (docs/live.md).\n"
       "Exit codes: 0 fix found, 1 bad input, 2 bad command line, 3 no fix for some "
       "signal, 4 output not written.");
 
@@ -40,6 +42,8 @@ int main(int argc, char** argv) {
   CLI::App* simulate = lobfix_app::add_simulate_command(app, simulate_args);
   lobfix_app::EvaluateArgs evaluate_args;
   CLI::App* evaluate = lobfix_app::add_evaluate_command(app, evaluate_args);
+  lobfix_app::LiveArgs live_args;
+  CLI::App* live = lobfix_app::add_live_command(app, live_args);
 
   try {
     app.parse(argc, argv);
@@ -65,5 +69,7 @@ int main(int argc, char** argv) {
     return lobfix_app::run_simulate(simulate_args);
   if (evaluate->parsed())
     return lobfix_app::run_evaluate(evaluate_args);
+  if (live->parsed())
+    return lobfix_app::run_live(live_args);
   return lobfix_app::kExitUsage;
 }

@@ -208,8 +208,8 @@ int load_bearings(const InputArgs& args, LoadedInput& out) {
   return kExitOk;
 }
 
-int solve_bearings(const FixArgs& args, const std::vector<lobfix::Bearing>& bearings,
-                   SolvedRun& out) {
+int make_fix_options(const FixArgs& args, lobfix::SolveOptions& solve_options,
+                     lobfix::UncertaintyOptions& uncertainty_options) {
   using namespace lobfix;
   for (const double p : args.confidence) {
     if (!(p > 0.0 && p < 1.0)) {
@@ -217,7 +217,6 @@ int solve_bearings(const FixArgs& args, const std::vector<lobfix::Bearing>& bear
       return kExitUsage;
     }
   }
-  SolveOptions& solve_options = out.solve_options;
   solve_options.max_range_m = args.max_range_km * 1000.0;
   solve_options.seed = args.seed;
   solve_options.loss = *parse_robust_loss(args.robust);  // CLI11 checked the name
@@ -226,9 +225,18 @@ int solve_bearings(const FixArgs& args, const std::vector<lobfix::Bearing>& bear
   solve_options.exclude_outliers = args.exclude_outliers;
   if (args.estimate_station_bias)
     solve_options.station_bias_prior_deg = args.bias_prior_deg;
-  UncertaintyOptions uncertainty_options;
   uncertainty_options.probabilities = args.confidence;
   uncertainty_options.alpha = args.alpha;
+  return kExitOk;
+}
+
+int solve_bearings(const FixArgs& args, const std::vector<lobfix::Bearing>& bearings,
+                   SolvedRun& out) {
+  using namespace lobfix;
+  SolveOptions& solve_options = out.solve_options;
+  UncertaintyOptions uncertainty_options;
+  if (const int rc = make_fix_options(args, solve_options, uncertainty_options); rc != kExitOk)
+    return rc;
 
   std::optional<double> window_s;
   std::optional<double> step_s;

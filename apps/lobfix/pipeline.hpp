@@ -63,6 +63,11 @@ struct LoadedInput {
 /// code to stop with (nothing has been written then).
 int load_bearings(const InputArgs& args, LoadedInput& out);
 
+/// The solver's and the uncertainty's options from the fix options. Prints a problem;
+/// returns kExitOk or the exit code to stop with.
+int make_fix_options(const FixArgs& args, lobfix::SolveOptions& solve_options,
+                     lobfix::UncertaintyOptions& uncertainty_options);
+
 /// The solved signals (one per signal, or per signal and window) and the options used.
 struct SolvedRun {
   std::vector<lobfix::FixResult> results;
