@@ -5,7 +5,7 @@
 #
 # 1. Configures a Release build in build-bench/ with -DLOBFIX_BUILD_BENCH=ON and builds
 #    lobfix_bench and the lobfix tool.
-# 2. lobfix_bench (Google Benchmark): solve_fix at 30 / 1,000 / 10,000 bearings, CSV parsing;
+# 2. lobfix_bench (Google Benchmark): solve_fix at 30 / 1,000 / 10,000 bearings, the search area, CSV parsing;
 #    lobfix_bench_planning: a 500 x 500 coverage map of 10 stations, 1,000 next-bearing spots.
 # 3. The whole `lobfix solve FILE --quiet` process on 1,000 and 10,000 synthetic bearings
 #    (bench/make_bearings.py), with hyperfine if installed, else a loop of /usr/bin/time.
