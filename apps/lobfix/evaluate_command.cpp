@@ -44,6 +44,13 @@ CLI::App* add_evaluate_command(CLI::App& app, EvaluateArgs& args) {
   cmd->add_option("--max-range-km", args.fix.max_range_km, "as for solve")
       ->capture_default_str()
       ->check(CLI::Range(0.001, 15000.0));
+  cmd->add_flag("--regions", args.regions,
+                "also count how often the probability map's highest-density regions of the "
+                "same probabilities hold the transmitter (as `lobfix area` draws them; slower)");
+  cmd->add_option("--wild-fraction", args.wild_fraction,
+                  "the maps' chance that any one bearing is wild, as for area")
+      ->capture_default_str()
+      ->check(CLI::Range(0.0, 0.49));
   cmd->add_flag("--json", args.json, "print a machine-readable report");
   return cmd;
 }
@@ -77,6 +84,8 @@ int run_evaluate(const EvaluateArgs& args) {
   options.solve.exclude_outliers = args.fix.exclude_outliers;
   options.solve.max_range_m = args.fix.max_range_km * 1000.0;
   options.probabilities = args.fix.confidence;
+  options.regions = args.regions;
+  options.map.wild_fraction = args.wild_fraction;
   Evaluation ev;
   try {
     Progress progress("evaluate trials");
@@ -105,6 +114,12 @@ int run_evaluate(const EvaluateArgs& args) {
     for (std::size_t i = 0; i < ev.probabilities.size(); ++i)
       cov.push_back({{"probability", ev.probabilities[i]}, {"coverage", ev.coverage[i]}});
     j["coverage"] = cov;
+    if (!ev.region_coverage.empty()) {
+      nlohmann::ordered_json rc = nlohmann::ordered_json::array();
+      for (std::size_t i = 0; i < ev.probabilities.size(); ++i)
+        rc.push_back({{"probability", ev.probabilities[i]}, {"coverage", ev.region_coverage[i]}});
+      j["region_coverage"] = rc;
+    }
     std::cout << j.dump(2) << "\n";
   } else {
     std::printf("Evaluated %s: %d trials from seed %llu, %d bearings each, robust loss %s\n",
@@ -122,6 +137,10 @@ int run_evaluate(const EvaluateArgs& args) {
     for (std::size_t i = 0; i < ev.probabilities.size(); ++i) {
       std::printf("  %g%% ellipse held the transmitter in %.1f%% of the fixes\n",
                   100.0 * ev.probabilities[i], 100.0 * ev.coverage[i]);
+    }
+    for (std::size_t i = 0; i < ev.region_coverage.size(); ++i) {
+      std::printf("  %g%% region of the probability map held it in %.1f%% of the fixes\n",
+                  100.0 * ev.probabilities[i], 100.0 * ev.region_coverage[i]);
     }
     std::printf(
         "A prediction from the stated sigmas, not a guarantee: real bearings carry errors no "

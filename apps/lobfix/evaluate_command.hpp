@@ -13,6 +13,8 @@ struct EvaluateArgs {
   ScenarioArgs scenario;
   FixArgs fix;
   int trials = 1000;
+  bool regions = false;
+  double wild_fraction = 0.01;
   bool json = false;
 };
 

@@ -3,6 +3,8 @@
 // is the bearing's full sigma budget (receiver and heading in quadrature).
 #include "lobfix/evaluate.hpp"
 
+#include "lobfix/regions.hpp"
+
 #include <algorithm>
 #include <cmath>
 #include <string>
@@ -52,6 +54,7 @@ Evaluation evaluate_geometry(const Scenario& scenario, const EvaluationOptions& 
   double sum2 = 0.0;
   std::vector<double> misses;
   std::vector<std::size_t> inside_count(k2.size(), 0);
+  std::vector<std::size_t> region_count(k2.size(), 0);
   for (int t = 0; t < options.trials; ++t) {
     SimulationOptions sim = options.simulation;
     sim.seed = options.simulation.seed + static_cast<std::uint64_t>(t);
@@ -73,6 +76,26 @@ Evaluation evaluate_geometry(const Scenario& scenario, const EvaluationOptions& 
         o.inside.push_back(o.mahalanobis2 <= k2[i]);
         if (o.inside.back())
           ++inside_count[i];
+      }
+      if (options.regions) {
+        const PosteriorMap map = posterior_map(bearings, fix, options.map);
+        long cell = -1;
+        if (map.ok) {
+          const UtmPoint u = utm_forward(map.grid.zone, truth);
+          cell = grid_cell_of(map.grid, u.easting_m, u.northing_m);
+        }
+        for (std::size_t i = 0; i < k2.size(); ++i) {
+          bool in = false;
+          if (cell >= 0) {
+            double mass = 0.0;
+            long cells = 0;
+            in = hpd_cells(map, options.probabilities[i], mass,
+                           cells)[static_cast<std::size_t>(cell)] != 0;
+          }
+          o.region_inside.push_back(in);
+          if (in)
+            ++region_count[i];
+        }
       }
       sum2 += x * x + y * y;
       misses.push_back(std::hypot(x, y));
@@ -96,6 +119,10 @@ Evaluation evaluate_geometry(const Scenario& scenario, const EvaluationOptions& 
     out.median_miss_m = median;
     for (std::size_t i = 0; i < k2.size(); ++i)
       out.coverage[i] = static_cast<double>(inside_count[i]) / out.fixed;
+    if (options.regions) {
+      for (std::size_t i = 0; i < k2.size(); ++i)
+        out.region_coverage.push_back(static_cast<double>(region_count[i]) / out.fixed);
+    }
   }
   return out;
 }

@@ -84,3 +84,6 @@ lobfix_cli_case(evaluate_no_progress_on_pipe RC 0
 lobfix_cli_case(coverage_no_progress_on_pipe RC 0
   ARGS coverage ${SAMPLES}/network.csv -o ${CLI_OUT}/coverage_quiet.tif --cell-m 1000 --json
   STDERR_EXACT ${CLI_EXPECTED}/no_progress.stderr MUST_EXIST ${CLI_OUT}/coverage_quiet.tif)
+lobfix_cli_case(evaluate_regions RC 0
+  ARGS evaluate ${SAMPLES}/rehearsal.csv --trials 5 --seed 3 --regions
+  STDOUT_RE "95% ellipse held" "95% region of the probability map held it in [0-9.]+% of the fixes")

@@ -9,13 +9,16 @@
 #include <GeographicLib/AzimuthalEquidistant.hpp>
 #include <GeographicLib/Geodesic.hpp>
 
+#include <algorithm>
 #include <cmath>
 #include <fstream>
+#include <functional>
 #include <string>
 #include <vector>
 
 #include "lobfix/evaluate.hpp"
 #include "lobfix/normalise.hpp"
+#include "lobfix/posterior.hpp"
 #include "lobfix/reader.hpp"
 #include "lobfix/solver.hpp"
 #include "lobfix/uncertainty.hpp"
@@ -278,6 +281,61 @@ TEST_CASE("evaluate: the coverage of the ellipses matches an independent count")
   Scenario moving = s;
   moving.transmitter->speed_m_s = 1.0;
   CHECK_THROWS_AS(evaluate_geometry(moving, e), InputError);
+}
+
+TEST_CASE("evaluate: the coverage of the map's regions matches an independent count") {
+  // The regions counted again with the all-exact map (GeographicLib Inverse at every cell,
+  // posterior_map_exact) on the same grid and a plain sort of its cells: an independent
+  // route to "is the truth's cell among the highest cells holding p".
+  const Scenario s = four_sites();
+  EvaluationOptions e;
+  e.trials = 40;
+  e.simulation.seed = 2718;
+  e.solve.loss = RobustLoss::andrews;
+  e.regions = true;
+  e.map.cell_m = 25.0;
+  const Evaluation ev = evaluate_geometry(s, e);
+  REQUIRE(ev.region_coverage.size() == 2);
+  int inside[2] = {0, 0};
+  int fixed = 0;
+  for (int t = 0; t < e.trials; ++t) {
+    SimulationOptions o = e.simulation;
+    o.seed = e.simulation.seed + static_cast<std::uint64_t>(t);
+    const std::vector<Bearing> b = to_bearings(simulate_bearings(s, o));
+    const Fix fix = solve_fix(b, e.solve);
+    if (!fix.ok())
+      continue;
+    ++fixed;
+    const PosteriorMap fast = posterior_map(b, fix, e.map);
+    REQUIRE(fast.ok);
+    const PosteriorMap exact = posterior_map_exact(b, fix, fast.grid, e.map.wild_fraction);
+    const UtmPoint u = utm_forward(exact.grid.zone, kTx);
+    const long cell = grid_cell_of(exact.grid, u.easting_m, u.northing_m);
+    if (cell < 0)
+      continue;
+    std::vector<double> sorted = exact.mass;
+    std::sort(sorted.begin(), sorted.end(), std::greater<>());
+    for (int i = 0; i < 2; ++i) {
+      double sum = 0.0;
+      double level = 0.0;
+      for (const double m : sorted) {
+        sum += m;
+        level = m;
+        if (sum >= e.probabilities[static_cast<std::size_t>(i)])
+          break;
+      }
+      if (exact.mass[static_cast<std::size_t>(cell)] >= level)
+        ++inside[i];
+    }
+  }
+  CHECK(ev.fixed == fixed);
+  MESSAGE("region coverage 50% " << ev.region_coverage[0] << " (count " << inside[0] << "), 95% "
+                                 << ev.region_coverage[1] << " (count " << inside[1] << ") of "
+                                 << fixed);
+  // The fast and the exact maps agree to ~1e-6 in total variation, so a trial could only
+  // differ where the truth sits exactly on a region's edge: allow one.
+  CHECK_ABS(ev.region_coverage[0] * ev.fixed, inside[0], 1.0);
+  CHECK_ABS(ev.region_coverage[1] * ev.fixed, inside[1], 1.0);
 }
 
 TEST_CASE("simulate: the scenario file reports each bad cell with line and column") {

@@ -8,6 +8,7 @@
 
 #include "lobfix/fix.hpp"
 #include "lobfix/planning.hpp"
+#include "lobfix/posterior.hpp"
 #include "lobfix/simulate.hpp"
 #include "lobfix/solver.hpp"
 
@@ -19,7 +20,11 @@ struct EvaluationOptions {
   SimulationOptions simulation;
   SolveOptions solve;
   std::vector<double> probabilities{0.5, 0.95};  ///< ellipses whose coverage is counted
-  ProgressFn progress;                           ///< called after each trial
+  /// Also count how often the highest-density regions of the probability map (posterior.hpp,
+  /// regions.hpp) of the same probabilities hold the truth (slower: one map per trial).
+  bool regions = false;
+  PosteriorOptions map;  ///< how those maps are made
+  ProgressFn progress;   ///< called after each trial
 };
 
 /// One simulated hunt and its fix.
@@ -32,6 +37,8 @@ struct TrialOutcome {
   /// ellipse of probability p when d^2 <= -2 ln(1 - p).
   double mahalanobis2 = 0.0;
   std::vector<bool> inside;  ///< per probability
+  /// Per probability, when regions were asked for: the truth's cell is in the region.
+  std::vector<bool> region_inside;
 };
 
 struct Evaluation {
@@ -43,6 +50,9 @@ struct Evaluation {
   CramerRao bound;             ///< for the scenario's bearings (wild ones included as clean)
   std::vector<double> probabilities;
   std::vector<double> coverage;  ///< fraction of fixed trials with the truth inside
+  /// The same for the map's regions (empty unless asked for); trials whose map could not be
+  /// made count as misses.
+  std::vector<double> region_coverage;
   std::vector<TrialOutcome> outcomes;
 };
 
