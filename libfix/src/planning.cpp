@@ -8,6 +8,8 @@
 // the Cramer-Rao bound is J^-1 (Torrieri 1984, IEEE Trans. AES 20(2):183-198, on the plane).
 #include "lobfix/planning.hpp"
 
+#include "detail/azimuth_field.hpp"
+
 #include <algorithm>
 #include <array>
 #include <atomic>
@@ -28,6 +30,11 @@ constexpr double kPi = 3.14159265358979323846;
 constexpr double kDegToRad = kPi / 180.0;
 // Closer than this (m) to a station, its azimuth is undefined: no information.
 constexpr double kMinReducedLengthM = 1.0;
+// The coverage map's interpolated geodesics: azi2 within 1e-5 rad (0.0006 deg) and m12, s12
+// within 1e-5 of GeographicLib at the check points (an error of 1e-5 in the information
+// gives about 1e-5 in the CEP).
+constexpr double kFieldAzimuthToleranceRad = 1e-5;
+constexpr double kFieldRelativeTolerance = 1e-5;
 
 // Information matrix of one bearing, from azi2 (deg) and m12 (m), of 1-sigma sigma_rad.
 Covariance2 information_of(double azi2_deg, double m12_m, double sigma_rad) {
@@ -156,17 +163,20 @@ namespace {
 
 // The bound at one point, from precomputed station data. `units` holds, per usable bearing,
 // the unit vector of its line of sight (for the crossing test).
-CramerRao bound_at(const std::vector<PlannedStation>& stations, const LatLon& transmitter,
-                   double min_sin_crossing, std::vector<std::array<double, 2>>& units) {
+/// The bound from each station's (azi2_deg, m12_m) at the transmitter as `line_of(i)` gives
+/// them (nullopt: out of range).
+template <class LineOf>
+CramerRao bound_from(const std::vector<PlannedStation>& stations, double min_sin_crossing,
+                     std::vector<std::array<double, 2>>& units, const LineOf& line_of) {
   CramerRao out;
   units.clear();
-  for (const PlannedStation& s : stations) {
-    const BearingInformation bi =
-        bearing_information(s.position, s.sigma_deg, transmitter, s.max_range_m);
-    if (!bi.usable)
+  for (std::size_t i = 0; i < stations.size(); ++i) {
+    const std::optional<std::pair<double, double>> line = line_of(i);
+    if (!line || !(line->second >= kMinReducedLengthM) || !(stations[i].sigma_deg > 0.0))
       continue;
-    add_to(out.information, bi.information);
-    const double a = bi.azimuth_at_transmitter_deg * kDegToRad;
+    add_to(out.information,
+           information_of(line->first, line->second, stations[i].sigma_deg * kDegToRad));
+    const double a = line->first * kDegToRad;
     units.push_back({std::sin(a), std::cos(a)});
   }
   out.stations_in_range = static_cast<int>(units.size());
@@ -186,6 +196,20 @@ CramerRao bound_at(const std::vector<PlannedStation>& stations, const LatLon& tr
   out.usable = true;
   out.rms_m = std::sqrt((*cov)[0][0] + (*cov)[1][1]);
   return out;
+}
+
+CramerRao bound_at(const std::vector<PlannedStation>& stations, const LatLon& transmitter,
+                   double min_sin_crossing, std::vector<std::array<double, 2>>& units) {
+  return bound_from(stations, min_sin_crossing, units,
+                    [&](std::size_t i) -> std::optional<std::pair<double, double>> {
+                      const PlannedStation& s = stations[i];
+                      const GeodesicLine12 g =
+                          s.max_range_m ? geodesic_inverse(s.position, transmitter)
+                                        : geodesic_inverse_azimuths(s.position, transmitter);
+                      if (s.max_range_m && g.s12_m > *s.max_range_m)
+                        return std::nullopt;
+                      return std::pair<double, double>{g.azi2_deg, g.m12_m};
+                    });
 }
 
 }  // namespace
@@ -267,19 +291,48 @@ CoverageMap coverage_map(const std::vector<PlannedStation>& stations, const UtmG
   std::atomic<int> rows_done{0};
   std::atomic<std::size_t> usable{0};
 
+  // Each station's geodesics to every cell come from an interpolated field
+  // (detail/azimuth_field.hpp), checked against GeographicLib at its check points; a map
+  // reaching beyond the zone falls back to exact geodesics cell by cell.
+  std::vector<detail::FarEndField> fields;
+  try {
+    detail::LatticeNodes lattice(grid);
+    for (const PlannedStation& s : stations) {
+      fields.emplace_back(s.position, lattice, kFieldAzimuthToleranceRad, kFieldRelativeTolerance);
+      out.max_azimuth_error_deg =
+          std::max(out.max_azimuth_error_deg, fields.back().max_azimuth_error_rad() / kDegToRad);
+      out.max_relative_error = std::max(out.max_relative_error, fields.back().max_relative_error());
+    }
+  } catch (const InputError&) {
+    fields.clear();
+    out.max_azimuth_error_deg = out.max_relative_error = 0.0;
+  }
+  const bool fast = !fields.empty();
   const auto work = [&](bool report) {
     std::vector<std::array<double, 2>> units;
     std::size_t my_usable = 0;
     for (int row = next_row++; row < grid.rows; row = next_row++) {
       const double northing = grid.centre_northing_m(row);
       for (int col = 0; col < grid.columns; ++col) {
-        LatLon cell;
-        try {
-          cell = utm_reverse(grid.zone, grid.centre_easting_m(col), northing);
-        } catch (const InputError&) {
-          continue;  // beyond the zone's reach: no data
+        const double easting = grid.centre_easting_m(col);
+        CramerRao b;
+        if (fast) {
+          b = bound_from(stations, min_sin, units,
+                         [&](std::size_t i) -> std::optional<std::pair<double, double>> {
+                           const detail::FarEndField::Value v = fields[i].at(easting, northing);
+                           if (stations[i].max_range_m && v.s12_m > *stations[i].max_range_m)
+                             return std::nullopt;
+                           return std::pair<double, double>{v.azi2_rad / kDegToRad, v.m12_m};
+                         });
+        } else {
+          LatLon cell;
+          try {
+            cell = utm_reverse(grid.zone, easting, northing);
+          } catch (const InputError&) {
+            continue;  // beyond the zone's reach: no data
+          }
+          b = bound_at(stations, cell, min_sin, units);
         }
-        const CramerRao b = bound_at(stations, cell, min_sin, units);
         if (!b.usable)
           continue;
         const double cep = fast_cep_m(b.covariance);

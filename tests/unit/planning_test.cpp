@@ -172,6 +172,56 @@ TEST_CASE("planning: coverage map cell equals the hand-computed Cramer-Rao CEP")
   CHECK(cut.usable_cells > 0);
 }
 
+TEST_CASE(
+    "planning: the coverage map's interpolated geodesics match the exact bound cell by cell") {
+  // A 60 km square with stations inside and outside it, one with a range limit: every 7th
+  // cell of the map against cramer_rao() at the cell's centre, which uses GeographicLib's
+  // Inverse directly (Karney 2013).
+  const LatLon c{47.8, 10.3};
+  std::vector<PlannedStation> stations;
+  const double az[] = {0, 72, 144, 216, 288, 30};
+  const double rg[] = {5000, 18000, 26000, 9000, 40000, 70000};
+  for (int i = 0; i < 6; ++i) {
+    double lat = 0, lon = 0;
+    GeographicLib::Geodesic::WGS84().Direct(c.lat_deg, c.lon_deg, az[i], rg[i], lat, lon);
+    stations.push_back({"site" + std::to_string(i), {lat, lon}, 1.5 + 0.25 * i, std::nullopt});
+  }
+  stations[2].max_range_m = 45000.0;
+  const UtmZone zone = utm_zone_of(c);
+  const UtmPoint u = utm_forward(zone, c);
+  UtmGrid grid;
+  grid.zone = zone;
+  grid.cell_m = 500.0;
+  grid.columns = grid.rows = 120;
+  grid.west_m = u.easting_m - 30000.0;
+  grid.north_m = u.northing_m + 30000.0;
+  const CoverageMap map = coverage_map(stations, grid, {});
+  MESSAGE("field check: azimuth " << map.max_azimuth_error_deg << " deg, relative "
+                                  << map.max_relative_error);
+  double worst = 0.0;
+  int compared = 0;
+  int nodata_agree = 0;
+  for (std::size_t k = 0; k < grid.size(); k += 7) {
+    const int row = static_cast<int>(k / 120);
+    const int col = static_cast<int>(k % 120);
+    const LatLon p = utm_reverse(zone, grid.centre_easting_m(col), grid.centre_northing_m(row));
+    const CramerRao b = cramer_rao(stations, p, {});
+    const float v = map.cep_m[k];
+    if (!b.usable) {
+      nodata_agree += std::isnan(v) ? 1 : 0;
+      CHECK(std::isnan(v));
+      continue;
+    }
+    REQUIRE(std::isfinite(v));
+    worst = std::max(worst, std::fabs(v - b.cep_m) / b.cep_m);
+    ++compared;
+  }
+  MESSAGE(compared << " cells compared, worst relative CEP difference " << worst << ", "
+                   << nodata_agree << " no-data cells agree");
+  CHECK(compared > 1500);
+  CHECK(worst < 1e-4);
+}
+
 TEST_CASE("planning: grid_around covers the stations with the margin") {
   const std::vector<PlannedStation> stations = square_pair();
   const UtmGrid grid = grid_around(stations, 2000.0, 250.0);

@@ -101,6 +101,11 @@ struct CoverageMap {
   UtmGrid grid;
   std::vector<float> cep_m;  ///< grid.size() values, rows from the top; NaN: no data
   std::size_t usable_cells = 0;
+  /// Largest error of the interpolated geodesics found by their check against GeographicLib
+  /// (docs/planning.md): azimuth at the cell (deg) and relative error of m12 and s12. Both 0
+  /// when the map was computed with exact geodesics throughout (a map beyond its zone's reach).
+  double max_azimuth_error_deg = 0.0;
+  double max_relative_error = 0.0;
 };
 /// @throws InputError (field "stations", "grid" or the option) for no station, a bad sigma or
 /// range, an empty grid or invalid options.

@@ -73,4 +73,43 @@ class AzimuthField {
   double max_error_rad_ = 0.0;
 };
 
+/// The far end of the geodesic from one station to every point of a map: the azimuth there
+/// (azi2), the reduced length m12 and the distance s12, for Fisher information over a map.
+/// Interpolated like AzimuthField: azi2 = t + c2 with c2 smooth (the convergence at the
+/// point plus the arc-to-chord correction), m12 = d r_m and s12 = d r_s with d the grid
+/// distance and the ratios smooth (about 1 / k, k the point scale). A station the zone cannot
+/// project has azi2, m12 and s12 themselves interpolated.
+class FarEndField {
+ public:
+  /// Refined until, at the check points, azi2 is within azimuth_tolerance_rad and m12 and
+  /// s12 within relative_tolerance of GeographicLib's Inverse (up to 129 x 129 nodes).
+  FarEndField(const LatLon& station, LatticeNodes& lattice, double azimuth_tolerance_rad,
+              double relative_tolerance);
+  struct Value {
+    double azi2_rad = 0.0;  ///< not wrapped
+    double m12_m = 0.0;
+    double s12_m = 0.0;
+  };
+  Value at(double easting_m, double northing_m) const;
+  double max_azimuth_error_rad() const { return max_azimuth_error_rad_; }
+  double max_relative_error() const { return max_relative_error_; }
+  int lattice_size() const { return n_; }
+
+ private:
+  double interpolate(const std::vector<double>& v, double easting_m, double northing_m) const;
+  bool planar_ = false;
+  double station_e_ = 0.0;
+  double station_n_ = 0.0;
+  int n_ = 0;
+  double west_ = 0.0;
+  double south_ = 0.0;
+  double step_e_ = 1.0;
+  double step_n_ = 1.0;
+  std::vector<double> c2_;  // azimuth correction (planar) or azi2 itself (rad)
+  std::vector<double> rm_;  // m12 / d (planar) or m12 (m)
+  std::vector<double> rs_;  // s12 / d (planar) or s12 (m)
+  double max_azimuth_error_rad_ = 0.0;
+  double max_relative_error_ = 0.0;
+};
+
 }  // namespace lobfix::detail
