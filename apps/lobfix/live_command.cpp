@@ -44,6 +44,8 @@
 #include "lobfix/ingest.hpp"
 #include "lobfix/journal.hpp"
 #include "lobfix/live_session.hpp"
+#include "lobfix/raster.hpp"
+#include "lobfix/search_area.hpp"
 #include "lobfix/summary.hpp"
 
 namespace lobfix_app {
@@ -471,10 +473,33 @@ class LiveServer {
     export_options.ray_length_m = args_.ray_length_km * 1000.0;
     bool written = true;
     try {
+      // The search areas from all bearings; the map files draw the newest rays only.
+      std::vector<lobfix::SearchArea> areas;
+      if (args_.area) {
+        lobfix::SearchAreaOptions area_options;
+        area_options.map.align_m = args_.segment_m;
+        for (const lobfix::FixResult& r : results) {
+          if (r.fix.ok())
+            areas.push_back(lobfix::make_search_area(bearings, r, area_options));
+        }
+      }
       const lobfix::MapView view = lobfix::newest_for_map(bearings, results, args_.map_bearings);
-      lobfix::write_geojson(geojson_path_, view.bearings, view.results, export_options);
+      lobfix::write_geojson(geojson_path_, view.bearings, view.results, areas, export_options);
       if (!args_.kml.empty())
-        lobfix::write_kml(args_.kml, view.bearings, view.results, export_options);
+        lobfix::write_kml(args_.kml, view.bearings, view.results, areas, export_options);
+      if (!args_.gpkg.empty())
+        lobfix::write_geopackage(args_.gpkg, view.bearings, view.results, areas, export_options);
+      if (!args_.geotiff.empty()) {
+        for (const lobfix::SearchArea& a : areas) {
+          if (!a.map.ok)
+            continue;
+          const std::vector<float> cells(a.map.mass.begin(), a.map.mass.end());
+          lobfix::GeoTiffOptions tiff;
+          tiff.description = "probability per cell";
+          lobfix::write_geotiff(args_.geotiff, a.map.grid, cells, tiff);
+          break;
+        }
+      }
     } catch (const std::exception& e) {
       written = false;
       ++counters_.output_errors;
@@ -817,6 +842,16 @@ CLI::App* add_live_command(CLI::App& app, LiveArgs& args) {
                   "write the ports listened on to this file as JSON, once bound");
   cmd->add_option("--geojson", args.geojson, "rewrite this GeoJSON file after each solve");
   cmd->add_option("--kml", args.kml, "rewrite this KML file after each solve");
+  cmd->add_flag("--area", args.area,
+                "also map the search area on each solve, as 'lobfix area' does (regions and "
+                "segments in the map files; see docs/search-area.md)");
+  cmd->add_option("--segment-m", args.segment_m, "side of a search segment with --area (m)")
+      ->capture_default_str()
+      ->check(CLI::Range(10.0, 100000.0));
+  cmd->add_option("--gpkg", args.gpkg, "rewrite this GeoPackage after each solve");
+  cmd->add_option("--geotiff", args.geotiff,
+                  "rewrite this GeoTIFF of the probability map after each solve (needs --area; "
+                  "the first signal with a map)");
   cmd->add_option("--ray-length-km", args.ray_length_km,
                   "length of the drawn rays; 0 draws each a little past its fix")
       ->capture_default_str()
@@ -864,6 +899,10 @@ int run_live(const LiveArgs& args) {
 
   if (args.sigma_deg && !(*args.sigma_deg > 0.0 && *args.sigma_deg <= 90.0)) {
     std::cerr << "lobfix: --sigma-deg must be in (0, 90]\n";
+    return kExitUsage;
+  }
+  if (!args.geotiff.empty() && !args.area) {
+    std::cerr << "lobfix: --geotiff needs --area (the GeoTIFF is the search area's map)\n";
     return kExitUsage;
   }
   if (args.no_http && !args.udp_port && !args.stdin_input) {

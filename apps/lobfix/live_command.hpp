@@ -23,6 +23,10 @@ struct LiveArgs {
   std::string port_file;
   std::string geojson;
   std::string kml;
+  bool area = false;  ///< also the search area (map, regions, segments) on every solve
+  double segment_m = 250.0;
+  std::string gpkg;
+  std::string geotiff;
   double ray_length_km = 0.0;
   std::size_t map_bearings = 500;  ///< 0: all
   double debounce_ms = 100.0;
