@@ -1,30 +1,26 @@
-// Map files of the bearings and fixes through GDAL/OGR (stage "export"): GeoJSON (RFC 7946)
-// through the GeoJSON driver, KML 2.2 (OGC 07-147r2) through the LIBKML driver.
+// Map files of the bearings, fixes and search areas through GDAL/OGR (stage "export"):
+// GeoJSON (RFC 7946) through the GeoJSON driver, KML 2.2 (OGC 07-147r2) through the LIBKML
+// driver, GeoPackage (OGC 12-128r18) through GPKG, and GPX 1.1 waypoints through GPX.
 //
 // The content is built once as a list of MapFeature values (geometry in lon/lat, WGS 84,
 // already cut at the antimeridian by shapes.cpp; attributes; KML name, description and
-// style) and then written by either driver. Files appear atomically: the driver writes
-// into GDAL's in-memory file system (so that every I/O error is ours to see: the GeoJSON
-// driver does not report failed writes), the bytes go to a temporary name in the target's
-// directory, are flushed to disk, and the temporary is renamed over the target.
+// style) and then written by each driver. Files appear atomically (detail/gdal_output.hpp):
+// the driver writes into GDAL's in-memory file system (so that every I/O error is ours to
+// see: the GeoJSON driver does not report failed writes), the bytes go to a temporary name in
+// the target's directory, are flushed to disk, and the temporary is renamed over the target.
 // Fields, styles and their meaning: docs/outputs.md.
 #include "lobfix/export.hpp"
 #include "lobfix/time.hpp"
 
 #include <cpl_conv.h>
 #include <cpl_error.h>
-#include <cpl_vsi.h>
-#include <fcntl.h>
 #include <ogr_featurestyle.h>
 #include <ogr_geometry.h>
 #include <ogr_spatialref.h>
 #include <ogrsf_frmts.h>
-#include <unistd.h>
 
 #include <algorithm>
-#include <atomic>
 #include <cctype>
-#include <cerrno>
 #include <cmath>
 #include <cstdarg>
 #include <cstddef>
