@@ -193,3 +193,24 @@ TEST_CASE("cell outlines: holes, parts touching at a corner, and areas") {
   CHECK(with_hole == 1);
   CHECK(total == 11);
 }
+
+TEST_CASE("a search area near the pole is made on the UPS grid and holds all the probability") {
+  // Above 84 N MGRS and UTM give way to UPS (zone 0; EPSG 32661 is WGS 84 / UPS North).
+  const std::vector<Bearing> b = scenario({86.2, 40.0});
+  FixResult r;
+  r.fix = solve_fix(b);
+  REQUIRE(r.fix.ok());
+  r.uncertainty = describe_uncertainty(r.fix, {});
+  const SearchArea a = make_search_area(b, r, {});
+  INFO(a.map.message);
+  REQUIRE(a.map.ok);
+  CHECK(a.map.grid.zone.zone == 0);
+  CHECK(a.map.grid.zone.epsg() == 32661);
+  double sum = a.plan.rest_poa;
+  for (const SearchSegment& s : a.plan.segments) {
+    sum += s.poa;
+    CHECK(s.mgrs.rfind("Z", 0) == 0);  // UPS north, east of the 0 meridian: band Z
+  }
+  CHECK_ABS(sum, 1.0, 1e-9);
+  CHECK(!a.plan.segments.empty());
+}
