@@ -214,3 +214,29 @@ TEST_CASE("a search area near the pole is made on the UPS grid and holds all the
   CHECK_ABS(sum, 1.0, 1e-9);
   CHECK(!a.plan.segments.empty());
 }
+
+TEST_CASE("a search area across the antimeridian stays whole and its outlines continuous") {
+  // The fix 3 km west of 180 deg: the map (zone 60) runs past the antimeridian; outline
+  // longitudes are continuous (they may pass 180) so that the exporters can cut them there
+  // (RFC 7946 section 3.1.9).
+  const std::vector<Bearing> b = scenario({-16.8, 179.97});
+  FixResult r;
+  r.fix = solve_fix(b);
+  REQUIRE(r.fix.ok());
+  r.uncertainty = describe_uncertainty(r.fix, {});
+  SearchAreaOptions o;
+  o.map.half_side_m = 6000.0;
+  const SearchArea a = make_search_area(b, r, o);
+  REQUIRE(a.map.ok);
+  CHECK(a.map.grid.zone.zone == 60);
+  double sum = a.plan.rest_poa;
+  for (const SearchSegment& s : a.plan.segments)
+    sum += s.poa;
+  CHECK_ABS(sum, 1.0, 1e-9);
+  for (const HpdRegion& reg : a.regions) {
+    for (const GeoPolygon& part : reg.parts) {
+      for (std::size_t i = 1; i < part.outer.size(); ++i)
+        CHECK(std::fabs(part.outer[i].lon_deg - part.outer[i - 1].lon_deg) < 1.0);
+    }
+  }
+}
