@@ -459,7 +459,14 @@ PosteriorMap posterior_map_exact(const std::vector<Bearing>& bearings, const Fix
   parallel_for(static_cast<std::size_t>(grid.rows), threads, [&](std::size_t row) {
     const double n = grid.centre_northing_m(static_cast<int>(row));
     for (int col = 0; col < grid.columns; ++col) {
-      const LatLon p = utm_reverse(grid.zone, grid.centre_easting_m(col), n);
+      LatLon p;
+      try {
+        p = utm_reverse(grid.zone, grid.centre_easting_m(col), n);
+      } catch (const InputError&) {  // beyond the zone's reach: no probability there
+        out.mass[row * static_cast<std::size_t>(grid.columns) + col] =
+            -std::numeric_limits<double>::infinity();
+        continue;
+      }
       out.mass[row * static_cast<std::size_t>(grid.columns) + col] =
           log_likelihood(terms, smear, wild_fraction, [&](std::size_t i) {
             const Bearing& b = bearings[fix.bearings[i].index];
