@@ -9,6 +9,7 @@
 #include "exit_codes.hpp"
 #include "live_command.hpp"
 #include "next_command.hpp"
+#include "report_command.hpp"
 #include "simulate_command.hpp"
 #include "solve_command.hpp"
 
@@ -24,7 +25,8 @@ int main(int argc, char** argv) {
   app.require_subcommand(1);
   app.footer(
       "Run 'lobfix solve --help' for the bearing file format and options; 'lobfix area' maps "
-      "the search area and cuts it into segments (docs/search-area.md); 'lobfix next', "
+      "the search area and cuts it into segments (docs/search-area.md); 'lobfix report' writes a "
+      "printable HTML field report (docs/report.md); 'lobfix next', "
       "'coverage', 'simulate' and 'evaluate' plan the hunt (docs/planning.md); 'lobfix live' "
       "takes bearings as they stream in (docs/live.md).\n"
       "Exit codes: 0 fix found, 1 bad input, 2 bad command line, 3 no fix for some "
@@ -42,6 +44,8 @@ int main(int argc, char** argv) {
   CLI::App* simulate = lobfix_app::add_simulate_command(app, simulate_args);
   lobfix_app::EvaluateArgs evaluate_args;
   CLI::App* evaluate = lobfix_app::add_evaluate_command(app, evaluate_args);
+  lobfix_app::ReportArgs report_args;
+  CLI::App* report = lobfix_app::add_report_command(app, report_args);
   lobfix_app::LiveArgs live_args;
   CLI::App* live = lobfix_app::add_live_command(app, live_args);
 
@@ -69,6 +73,8 @@ int main(int argc, char** argv) {
     return lobfix_app::run_simulate(simulate_args);
   if (evaluate->parsed())
     return lobfix_app::run_evaluate(evaluate_args);
+  if (report->parsed())
+    return lobfix_app::run_report(report_args);
   if (live->parsed())
     return lobfix_app::run_live(live_args);
   return lobfix_app::kExitUsage;
