@@ -379,7 +379,7 @@ PosteriorMap compute(const std::vector<Bearing>& bearings, const Fix& fix,
             log_at(grid.centre_easting_m(col), n, cell_smear, options.wild_fraction);
       }
     }
-    evaluated += static_cast<std::size_t>((c1 - c0) * (r1 - r0));
+    evaluated += static_cast<std::size_t>(c1 - c0) * static_cast<std::size_t>(r1 - r0);
   });
   out.cells_evaluated = evaluated.load();
   normalise_log_mass(out.mass);

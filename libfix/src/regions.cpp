@@ -85,7 +85,11 @@ std::vector<char> hpd_cells(const PosteriorMap& map, double probability, double&
     }
   }
   std::sort(edge.begin(), edge.end(), [&](std::size_t a, std::size_t b) {
-    return map.mass[a] > map.mass[b] || (map.mass[a] == map.mass[b] && a < b);
+    const double ma = map.mass[a];
+    const double mb = map.mass[b];
+    if (ma != mb)
+      return ma > mb;
+    return a < b;  // ties by cell index
   });
   for (const std::size_t k : edge) {
     if (mass >= probability)
