@@ -127,9 +127,11 @@ int run_area(const AreaArgs& args) {
     std::cerr << "lobfix: " << e.diagnostic().reason << "\n";
     return kExitUsage;
   }
+  // A signal without a fix was reported by solve_bearings; one with a fix but no map here.
   bool all_mapped = true;
-  for (const SearchArea& a : areas) {
-    if (!a.map.ok && solved.results.size() == areas.size()) {
+  for (std::size_t i = 0; i < areas.size(); ++i) {
+    const SearchArea& a = areas[i];
+    if (!a.map.ok && solved.results[i].fix.ok()) {
       all_mapped = false;
       std::cerr << "lobfix: no search area for "
                 << (a.signal.empty() ? std::string("the bearings") : "signal '" + a.signal + "'")
