@@ -2,7 +2,9 @@
 
 #include <filesystem>
 #include <iostream>
+#include <memory>
 
+#include "crs_output.hpp"
 #include "exit_codes.hpp"
 #include "lobfix/error.hpp"
 #include "lobfix/export.hpp"
@@ -79,6 +81,9 @@ CLI::App* add_area_command(CLI::App& app, AreaArgs& args) {
   cmd->add_option("--segments-csv", args.segments_csv, "write the team list of segments as CSV");
   cmd->add_flag("--json", args.json, "print a machine-readable JSON summary instead of text");
   cmd->add_flag("-q,--quiet", args.quiet, "print no summary (files and errors only)");
+  cmd->add_option("--crs", args.crs,
+                  "also give the fix, the stations and the segment centres in this projected "
+                  "CRS (e.g. EPSG:2056), in the summary and --json");
   cmd->add_option("--ray-length-km", args.ray_length_km,
                   "length of the drawn rays; 0 draws each a little past its fix")
       ->capture_default_str()
@@ -111,6 +116,10 @@ int run_area(const AreaArgs& args) {
       return kExitUsage;
     }
   }
+
+  std::unique_ptr<ProjectedCrs> crs;
+  if (const int rc = open_output_crs(args.crs, crs); rc != kExitOk)
+    return rc;
 
   LoadedInput loaded;
   if (const int rc = load_bearings(args.input, loaded); rc != kExitOk)
@@ -172,9 +181,11 @@ int run_area(const AreaArgs& args) {
 
   const RunInfo run = make_run_info(args.input, loaded, solved);
   if (args.json) {
-    std::cout << json_summary(run, loaded.bearings, solved.results, areas);
+    const std::string json = json_summary(run, loaded.bearings, solved.results, areas);
+    std::cout << (crs ? with_crs_json(json, *crs, loaded.bearings, solved.results, areas) : json);
   } else if (!args.quiet) {
-    std::cout << text_summary(run, loaded.bearings, solved.results, areas);
+    const std::string text = text_summary(run, loaded.bearings, solved.results, areas);
+    std::cout << (crs ? with_crs_text(text, *crs, loaded.bearings, solved.results, areas) : text);
   }
   return solved.all_fixed && all_mapped ? kExitOk : kExitNoFix;
 }

@@ -30,6 +30,7 @@ struct AreaArgs {
   bool json = false;
   bool quiet = false;
   double ray_length_km = 0.0;
+  std::string crs;  ///< --crs: also give the coordinates in this projected CRS
 };
 
 CLI::App* add_area_command(CLI::App& app, AreaArgs& args);

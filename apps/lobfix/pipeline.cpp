@@ -135,6 +135,16 @@ int load_bearings(const InputArgs& args, LoadedInput& out) {
   std::vector<Diagnostic> problems;
   std::vector<Diagnostic> warnings;
   std::unique_ptr<ProjectedCrs> grid_crs;
+  // A CRS code the user gave on the command line that PROJ cannot use is a bad command line
+  // (exit 2), like --crs.
+  if (!args.grid_crs.empty()) {
+    try {
+      grid_crs = std::make_unique<ProjectedCrs>(args.grid_crs);
+    } catch (const InputError& e) {
+      std::cerr << "lobfix: --grid-crs: " << e.diagnostic().reason << "\n";
+      return kExitUsage;
+    }
+  }
   try {
     read = read_observations_file(args.input, read_options);
     problems = read.row_errors;
@@ -158,8 +168,6 @@ int load_bearings(const InputArgs& args, LoadedInput& out) {
           tracks.push_back(std::move(t));
       }
     }
-    if (!args.grid_crs.empty())
-      grid_crs = std::make_unique<ProjectedCrs>(args.grid_crs);
   } catch (const InputError& e) {
     std::cerr << e.what() << "\n";
     return kExitInputError;

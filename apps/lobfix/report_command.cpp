@@ -6,6 +6,7 @@
 #include <memory>
 #include <nlohmann/json.hpp>
 
+#include "crs_output.hpp"
 #include "exit_codes.hpp"
 #include "lobfix/crs.hpp"
 #include "lobfix/error.hpp"
@@ -96,14 +97,8 @@ int run_report(const ReportArgs& args) {
     }
   }
   std::unique_ptr<ProjectedCrs> crs;
-  if (!args.crs.empty()) {
-    try {
-      crs = std::make_unique<ProjectedCrs>(args.crs);
-    } catch (const InputError& e) {
-      std::cerr << "lobfix: --crs: " << e.diagnostic().reason << "\n";
-      return kExitUsage;
-    }
-  }
+  if (const int rc = open_output_crs(args.crs, crs); rc != kExitOk)
+    return rc;
 
   LoadedInput loaded;
   if (const int rc = load_bearings(args.input, loaded); rc != kExitOk)
@@ -136,38 +131,13 @@ int run_report(const ReportArgs& args) {
 
   if (args.json) {
     std::string json = json_summary(run, loaded.bearings, solved.results, areas);
-    if (crs) {
-      // area's document with the CRS coordinates added (docs/report.md).
-      auto doc = nlohmann::ordered_json::parse(json);
-      nlohmann::ordered_json points = nlohmann::ordered_json::array();
-      for (const CrsCoordinate& c : crs_coordinates(loaded.bearings, solved.results, areas, *crs)) {
-        nlohmann::ordered_json p{{"kind", c.kind},
-                                 {"name", c.label},
-                                 {"lat", c.point.lat_deg},
-                                 {"lon", c.point.lon_deg}};
-        if (c.ok) {
-          p["easting"] = c.easting;
-          p["northing"] = c.northing;
-        } else {
-          p["error"] = c.error;
-        }
-        points.push_back(std::move(p));
-      }
-      doc["crs"] = {{"code", crs->code()}, {"name", crs->name()}, {"points", std::move(points)}};
-      json = doc.dump(2, ' ', false, nlohmann::ordered_json::error_handler_t::replace) + "\n";
-    }
+    if (crs)
+      json = with_crs_json(json, *crs, loaded.bearings, solved.results, areas);
     std::cout << json;
   } else if (!args.quiet) {
-    std::cout << text_summary(run, loaded.bearings, solved.results, areas);
-    if (crs) {
-      std::cout << "\nIn " << crs->code() << " (" << crs->name() << "), easting northing:\n";
-      for (const CrsCoordinate& c : crs_coordinates(loaded.bearings, solved.results, areas, *crs)) {
-        std::cout << fmt::format("  {:<8} {:<16} ", c.kind, c.label)
-                  << (c.ok ? fmt::format("{:.3f} {:.3f}", c.easting, c.northing)
-                           : "not in this CRS: " + c.error)
-                  << "\n";
-      }
-    }
+    const std::string text = text_summary(run, loaded.bearings, solved.results, areas);
+    std::cout << (crs ? with_crs_text(text, *crs, loaded.bearings, solved.results, areas) : text);
+
     std::cout << "\nReport written to " << args.output
               << (args.svg.empty() ? "" : ", map to " + args.svg)
               << ": open it in a browser, or print it (A4 or US Letter).\n";

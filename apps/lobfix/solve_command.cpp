@@ -1,7 +1,9 @@
 #include "solve_command.hpp"
 
 #include <iostream>
+#include <memory>
 
+#include "crs_output.hpp"
 #include "exit_codes.hpp"
 #include "lobfix/error.hpp"
 #include "lobfix/export.hpp"
@@ -26,6 +28,9 @@ CLI::App* add_solve_command(CLI::App& app, SolveArgs& args) {
   cmd->add_option("--kml", args.kml, "write the same as KML (for Google-Earth-style viewers)");
   cmd->add_flag("--json", args.json, "print a machine-readable JSON summary instead of text");
   cmd->add_flag("-q,--quiet", args.quiet, "print no summary (files and errors only)");
+  cmd->add_option("--crs", args.crs,
+                  "also give the fix and the stations in this projected CRS (e.g. EPSG:2056), "
+                  "in the summary and --json");
   cmd->add_option("--ray-length-km", args.ray_length_km,
                   "length of the drawn rays; 0 draws each a little past its fix")
       ->capture_default_str()
@@ -35,6 +40,9 @@ CLI::App* add_solve_command(CLI::App& app, SolveArgs& args) {
 
 int run_solve(const SolveArgs& args) {
   using namespace lobfix;
+  std::unique_ptr<ProjectedCrs> crs;
+  if (const int rc = open_output_crs(args.crs, crs); rc != kExitOk)
+    return rc;
   LoadedInput loaded;
   if (const int rc = load_bearings(args.input, loaded); rc != kExitOk)
     return rc;
@@ -59,9 +67,11 @@ int run_solve(const SolveArgs& args) {
 
   const RunInfo run = make_run_info(args.input, loaded, solved);
   if (args.json) {
-    std::cout << json_summary(run, loaded.bearings, solved.results);
+    const std::string json = json_summary(run, loaded.bearings, solved.results);
+    std::cout << (crs ? with_crs_json(json, *crs, loaded.bearings, solved.results, {}) : json);
   } else if (!args.quiet) {
-    std::cout << text_summary(run, loaded.bearings, solved.results);
+    const std::string text = text_summary(run, loaded.bearings, solved.results);
+    std::cout << (crs ? with_crs_text(text, *crs, loaded.bearings, solved.results, {}) : text);
   }
   return solved.all_fixed ? kExitOk : kExitNoFix;
 }

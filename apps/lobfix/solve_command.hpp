@@ -16,6 +16,7 @@ struct SolveArgs {
   bool json = false;
   bool quiet = false;
   double ray_length_km = 0.0;
+  std::string crs;  ///< --crs: also give the coordinates in this projected CRS
 };
 
 /// Register the subcommand; `args` must outlive the parse.
