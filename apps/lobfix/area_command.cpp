@@ -1,5 +1,8 @@
 #include "area_command.hpp"
 
+#include <fmt/format.h>
+
+#include <chrono>
 #include <filesystem>
 #include <iostream>
 #include <memory>
@@ -11,6 +14,7 @@
 #include "lobfix/raster.hpp"
 #include "lobfix/search_area.hpp"
 #include "lobfix/summary.hpp"
+#include "verbose.hpp"
 
 namespace lobfix_app {
 
@@ -130,8 +134,18 @@ int run_area(const AreaArgs& args) {
 
   std::vector<SearchArea> areas;
   try {
-    for (const FixResult& r : solved.results)
+    for (const FixResult& r : solved.results) {
+      const auto t_area = std::chrono::steady_clock::now();
       areas.push_back(make_search_area(loaded.bearings, r, options));
+      const SearchArea& a = areas.back();
+      if (a.map.ok) {
+        say(
+            fmt::format("search area of '{}': {} x {} cells of {} m, {} computed one by one, "
+                        "{} segments, in {:.0f} ms",
+                        a.signal, a.map.grid.columns, a.map.grid.rows, a.map.grid.cell_m,
+                        a.map.cells_evaluated, a.plan.segments.size(), ms_since(t_area)));
+      }
+    }
   } catch (const InputError& e) {
     std::cerr << "lobfix: " << e.diagnostic().reason << "\n";
     return kExitUsage;

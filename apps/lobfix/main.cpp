@@ -12,6 +12,7 @@
 #include "report_command.hpp"
 #include "simulate_command.hpp"
 #include "solve_command.hpp"
+#include "verbose.hpp"
 
 // Bad input and unwritable outputs are caught where they arise (the *_command.cpp files);
 // any other exception is a lobfix bug (tier 3, docs/architecture.md) and should stop the
@@ -23,6 +24,11 @@ int main(int argc, char** argv) {
       "A fix is an estimate: reflections mislead, and the lead agency's procedures come first."};
   app.set_version_flag("--version", std::string("lobfix ") + LOBFIX_VERSION);
   app.require_subcommand(1);
+  bool verbose = false;
+  app.add_flag("-v,--verbose", verbose,
+               "say on stderr what each step did and how long it took (before or after the "
+               "subcommand)");
+  app.fallthrough();
   app.footer(
       "Run 'lobfix solve --help' for the bearing file format and options; 'lobfix area' maps "
       "the search area and cuts it into segments (docs/search-area.md); 'lobfix report' writes a "
@@ -61,6 +67,7 @@ int main(int argc, char** argv) {
     app.exit(e);
     return lobfix_app::kExitUsage;
   }
+  lobfix_app::set_verbose(verbose);
   if (solve->parsed())
     return lobfix_app::run_solve(solve_args);
   if (area->parsed())

@@ -1,6 +1,9 @@
 #include "pipeline.hpp"
 
+#include <fmt/format.h>
+
 #include <cctype>
+#include <chrono>
 #include <fstream>
 #include <iostream>
 #include <memory>
@@ -13,6 +16,7 @@
 #include "lobfix/robust.hpp"
 #include "lobfix/track.hpp"
 #include "lobfix/windows.hpp"
+#include "verbose.hpp"
 
 namespace lobfix_app {
 
@@ -128,6 +132,7 @@ int load_bearings(const InputArgs& args, LoadedInput& out) {
     return kExitUsage;
   }
 
+  const auto t_read = std::chrono::steady_clock::now();
   // Read: the bearings, the tracks, the grid's CRS. Problems in rows are collected, then
   // either fail the run or are skipped with --skip-bad; problems with whole files stop it.
   ReadResult read;
@@ -173,6 +178,9 @@ int load_bearings(const InputArgs& args, LoadedInput& out) {
     return kExitInputError;
   }
 
+  say(fmt::format("read {} rows from {} and {} track(s) in {:.0f} ms", read.rows_read, args.input,
+                  tracks.size(), ms_since(t_read)));
+  const auto t_normalise = std::chrono::steady_clock::now();
   // Normalise: every row becomes a true bearing with its sigma budget.
   NormaliseOptions normalise_options;
   normalise_options.declination_deg = args.declination_deg;
@@ -188,6 +196,8 @@ int load_bearings(const InputArgs& args, LoadedInput& out) {
     return kExitUsage;
   }
   std::vector<Observation>().swap(read.observations);  // the bearings carry all from here
+  say(fmt::format("normalised to {} true bearings ({} problems) in {:.0f} ms",
+                  normalised.bearings.size(), normalised.errors.size(), ms_since(t_normalise)));
   problems.insert(problems.end(), normalised.errors.begin(), normalised.errors.end());
   warnings.insert(warnings.end(), normalised.warnings.begin(), normalised.warnings.end());
 
@@ -260,6 +270,7 @@ int solve_bearings(const FixArgs& args, const std::vector<lobfix::Bearing>& bear
     return kExitUsage;
   }
 
+  const auto t_solve = std::chrono::steady_clock::now();
   std::vector<FixResult>& results = out.results;
   const auto add_results = [&](std::vector<Fix> fixes) {
     for (Fix& fix : fixes) {
@@ -293,6 +304,8 @@ int solve_bearings(const FixArgs& args, const std::vector<lobfix::Bearing>& bear
     return kExitUsage;
   }
 
+  say(fmt::format("solved {} signal(s) or window(s) in {:.0f} ms ({} loss)", results.size(),
+                  ms_since(t_solve), args.robust));
   out.all_fixed = true;
   out.any_fixed = false;
   for (const FixResult& r : results) {

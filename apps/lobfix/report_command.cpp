@@ -2,6 +2,7 @@
 
 #include <fmt/format.h>
 
+#include <chrono>
 #include <iostream>
 #include <memory>
 #include <nlohmann/json.hpp>
@@ -14,6 +15,7 @@
 #include "lobfix/report.hpp"
 #include "lobfix/search_area.hpp"
 #include "lobfix/summary.hpp"
+#include "verbose.hpp"
 
 namespace lobfix_app {
 
@@ -108,8 +110,18 @@ int run_report(const ReportArgs& args) {
     return rc;
   std::vector<SearchArea> areas;
   try {
-    for (const FixResult& r : solved.results)
+    for (const FixResult& r : solved.results) {
+      const auto t_area = std::chrono::steady_clock::now();
       areas.push_back(make_search_area(loaded.bearings, r, options));
+      const SearchArea& a = areas.back();
+      if (a.map.ok) {
+        say(
+            fmt::format("search area of '{}': {} x {} cells of {} m, {} computed one by one, "
+                        "{} segments, in {:.0f} ms",
+                        a.signal, a.map.grid.columns, a.map.grid.rows, a.map.grid.cell_m,
+                        a.map.cells_evaluated, a.plan.segments.size(), ms_since(t_area)));
+      }
+    }
   } catch (const InputError& e) {
     std::cerr << "lobfix: " << e.diagnostic().reason << "\n";
     return kExitUsage;
