@@ -218,7 +218,9 @@ TEST_CASE("CRS coordinates of the stations agree with cs2cs to 1 mm, UTM 32N and
   // The same with EPSG:2056 (CH1903+ / LV95; PROJ's transformation from WGS 84 for it).
   const double lv95[3][2] = {
       {2643641.9903, 1180027.6752}, {2650120.3836, 1181745.8899}, {2645119.3740, 1186708.8863}};
-  for (const auto& [code, values] : {std::pair{"EPSG:32632", utm}, std::pair{"EPSG:2056", lv95}}) {
+  for (const auto& [code_binding, values] :
+       {std::pair{"EPSG:32632", utm}, std::pair{"EPSG:2056", lv95}}) {
+    const std::string code = code_binding;  // INFO's lambda cannot capture a structured binding
     INFO(code);
     const ProjectedCrs crs(code);
     const std::vector<CrsCoordinate> c = crs_coordinates(s.bearings, s.results, s.areas, crs);
