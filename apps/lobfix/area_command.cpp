@@ -1,8 +1,5 @@
 #include "area_command.hpp"
 
-#include <fmt/format.h>
-
-#include <chrono>
 #include <filesystem>
 #include <iostream>
 #include <memory>
@@ -14,7 +11,6 @@
 #include "lobfix/raster.hpp"
 #include "lobfix/search_area.hpp"
 #include "lobfix/summary.hpp"
-#include "verbose.hpp"
 
 namespace lobfix_app {
 
@@ -42,40 +38,7 @@ CLI::App* add_area_command(CLI::App& app, AreaArgs& args) {
       "docs/search-area.md.");
   add_input_options(cmd, args.input);
   add_fix_options(cmd, args.fix, /*with_windows=*/false);
-  cmd->add_option("--segment-m", args.segment_m, "side of a search segment (m, on the UTM grid)")
-      ->capture_default_str()
-      ->check(CLI::Range(10.0, 100000.0));
-  cmd->add_option("--cell-m", args.cell_m,
-                  "side of a map cell (m); must divide --segment-m; 0 picks one")
-      ->capture_default_str()
-      ->check(CLI::Range(0.0, 100000.0));
-  cmd->add_option("--area-km", args.area_km,
-                  "side of the square mapped around the fix (km); 0 sizes it from the fix's "
-                  "uncertainty. The transmitter is assumed to lie inside it.")
-      ->capture_default_str()
-      ->check(CLI::Range(0.0, 2000.0));
-  cmd->add_option("--regions", args.regions,
-                  "probabilities of the highest-probability regions, comma-separated")
-      ->delimiter(',')
-      ->capture_default_str();
-  cmd->add_option("--segments-cover", args.segments_cover,
-                  "the segments cover the region of this probability")
-      ->capture_default_str()
-      ->check(CLI::Range(0.5, 0.999));
-  cmd->add_option("--wild-fraction", args.wild_fraction,
-                  "chance that any one bearing is wild (a reflection): each bearing's "
-                  "likelihood keeps this much spread over all directions")
-      ->capture_default_str()
-      ->check(CLI::Range(0.0, 0.49));
-  cmd->add_option("--merge-below", args.merge_below,
-                  "a square holding less POA than this joins its best neighbouring segment")
-      ->capture_default_str()
-      ->check(CLI::Range(0.0, 0.5));
-  cmd->add_option("--searched", args.searched,
-                  "an unsuccessful search: SEGMENT:POD, e.g. S01:0.7 or S02:60% (segment id or "
-                  "MGRS label); repeat for several, in the order searched")
-      ->take_all()
-      ->allow_extra_args(false);
+  add_area_options(cmd, args.area);
   cmd->add_option("--geotiff", args.geotiff, "write the probability per cell as a GeoTIFF");
   cmd->add_option("--geojson", args.geojson,
                   "write stations, rays, fix, ellipses, regions and segments as GeoJSON");
@@ -97,30 +60,6 @@ CLI::App* add_area_command(CLI::App& app, AreaArgs& args) {
 
 int run_area(const AreaArgs& args) {
   using namespace lobfix;
-  SearchAreaOptions options;
-  options.map.cell_m = args.cell_m;
-  options.map.align_m = args.segment_m;
-  options.map.half_side_m = args.area_km * 500.0;
-  options.map.wild_fraction = args.wild_fraction;
-  options.region_probabilities = args.regions;
-  options.segments.region_probability = args.segments_cover;
-  options.segments.merge_below_poa = args.merge_below;
-  for (const std::string& text : args.searched) {
-    const auto report = parse_search_report(text);
-    if (!report) {
-      std::cerr << "lobfix: --searched " << text
-                << ": write SEGMENT:POD, e.g. S01:0.7 or S01:70%\n";
-      return kExitUsage;
-    }
-    options.searched.push_back(*report);
-  }
-  for (const double p : args.regions) {
-    if (!(p > 0.0 && p < 1.0)) {
-      std::cerr << "lobfix: --regions " << p << " is not a probability between 0 and 1\n";
-      return kExitUsage;
-    }
-  }
-
   std::unique_ptr<ProjectedCrs> crs;
   if (const int rc = open_output_crs(args.crs, crs); rc != kExitOk)
     return rc;
@@ -133,23 +72,9 @@ int run_area(const AreaArgs& args) {
     return rc;
 
   std::vector<SearchArea> areas;
-  try {
-    for (const FixResult& r : solved.results) {
-      const auto t_area = std::chrono::steady_clock::now();
-      areas.push_back(make_search_area(loaded.bearings, r, options));
-      const SearchArea& a = areas.back();
-      if (a.map.ok) {
-        say(
-            fmt::format("search area of '{}': {} x {} cells of {} m, {} computed one by one, "
-                        "{} segments, in {:.0f} ms",
-                        a.signal, a.map.grid.columns, a.map.grid.rows, a.map.grid.cell_m,
-                        a.map.cells_evaluated, a.plan.segments.size(), ms_since(t_area)));
-      }
-    }
-  } catch (const InputError& e) {
-    std::cerr << "lobfix: " << e.diagnostic().reason << "\n";
-    return kExitUsage;
-  }
+  if (const int rc = make_search_areas(args.area, loaded.bearings, solved.results, areas);
+      rc != kExitOk)
+    return rc;
   // A signal without a fix was reported by solve_bearings; one with a fix but no map here.
   bool all_mapped = true;
   for (std::size_t i = 0; i < areas.size(); ++i) {

@@ -13,14 +13,7 @@ namespace lobfix_app {
 struct AreaArgs {
   InputArgs input;
   FixArgs fix;
-  double cell_m = 0.0;
-  double segment_m = 250.0;
-  double area_km = 0.0;
-  std::vector<double> regions{0.5, 0.95};
-  double segments_cover = 0.95;
-  double wild_fraction = 0.01;
-  double merge_below = 0.002;
-  std::vector<std::string> searched;
+  AreaOptionArgs area;
   std::string geotiff;
   std::string geojson;
   std::string kml;

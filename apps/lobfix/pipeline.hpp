@@ -10,6 +10,7 @@
 
 #include "lobfix/bearing.hpp"
 #include "lobfix/error.hpp"
+#include "lobfix/search_area.hpp"
 #include "lobfix/solver.hpp"
 #include "lobfix/summary.hpp"
 #include "lobfix/uncertainty.hpp"
@@ -45,11 +46,33 @@ struct FixArgs {
   std::string window_step;
 };
 
+/// How the search area is mapped and cut (`area`, `report`).
+struct AreaOptionArgs {
+  double cell_m = 0.0;
+  double segment_m = 250.0;
+  double area_km = 0.0;
+  std::vector<double> regions{0.5, 0.95};
+  double segments_cover = 0.95;
+  double wild_fraction = 0.01;
+  double merge_below = 0.002;
+  std::vector<std::string> searched;
+};
+
 /// Register INPUT and the input options on `cmd`; `args` must outlive the parse.
 void add_input_options(CLI::App* cmd, InputArgs& args);
 /// Register the solve options on `cmd`; `args` must outlive the parse. With
 /// `with_windows` false, --window and --window-step are left out.
 void add_fix_options(CLI::App* cmd, FixArgs& args, bool with_windows = true);
+
+/// Register the search-area options on `cmd`; `args` must outlive the parse.
+void add_area_options(CLI::App* cmd, AreaOptionArgs& args);
+
+/// The search area of every solved signal (one per result, in order). Prints bad options
+/// (a malformed --searched, a region probability outside (0, 1), an unknown segment) and
+/// returns kExitUsage for them; else kExitOk. With -v, each map's size and time.
+int make_search_areas(const AreaOptionArgs& args, const std::vector<lobfix::Bearing>& bearings,
+                      const std::vector<lobfix::FixResult>& results,
+                      std::vector<lobfix::SearchArea>& out);
 
 /// The true bearings of a run and what reading them said.
 struct LoadedInput {

@@ -1,8 +1,5 @@
 #include "report_command.hpp"
 
-#include <fmt/format.h>
-
-#include <chrono>
 #include <iostream>
 #include <memory>
 #include <nlohmann/json.hpp>
@@ -15,7 +12,6 @@
 #include "lobfix/report.hpp"
 #include "lobfix/search_area.hpp"
 #include "lobfix/summary.hpp"
-#include "verbose.hpp"
 
 namespace lobfix_app {
 
@@ -36,38 +32,7 @@ CLI::App* add_report_command(CLI::App& app, ReportArgs& args) {
                   "also give the fix, stations and segment centres in this projected CRS "
                   "(e.g. EPSG:2056), through PROJ");
   cmd->add_option("--title", args.title, "the report's title");
-  cmd->add_option("--segment-m", args.segment_m, "side of a search segment (m, on the UTM grid)")
-      ->capture_default_str()
-      ->check(CLI::Range(10.0, 100000.0));
-  cmd->add_option("--cell-m", args.cell_m,
-                  "side of a map cell (m); must divide --segment-m; 0 picks one")
-      ->capture_default_str()
-      ->check(CLI::Range(0.0, 100000.0));
-  cmd->add_option("--area-km", args.area_km,
-                  "side of the square mapped around the fix (km); 0 sizes it from the fix's "
-                  "uncertainty")
-      ->capture_default_str()
-      ->check(CLI::Range(0.0, 2000.0));
-  cmd->add_option("--regions", args.regions,
-                  "probabilities of the highest-probability regions, comma-separated")
-      ->delimiter(',')
-      ->capture_default_str();
-  cmd->add_option("--segments-cover", args.segments_cover,
-                  "the segments cover the region of this probability")
-      ->capture_default_str()
-      ->check(CLI::Range(0.5, 0.999));
-  cmd->add_option("--wild-fraction", args.wild_fraction,
-                  "chance that any one bearing is wild (a reflection)")
-      ->capture_default_str()
-      ->check(CLI::Range(0.0, 0.49));
-  cmd->add_option("--merge-below", args.merge_below,
-                  "a square holding less POA than this joins its best neighbouring segment")
-      ->capture_default_str()
-      ->check(CLI::Range(0.0, 0.5));
-  cmd->add_option("--searched", args.searched,
-                  "an unsuccessful search: SEGMENT:POD, e.g. S01:0.7; repeat for several")
-      ->take_all()
-      ->allow_extra_args(false);
+  add_area_options(cmd, args.area);
   cmd->add_flag("--json", args.json, "print the JSON summary (as 'area --json') instead of text");
   cmd->add_flag("-q,--quiet", args.quiet, "print no summary (files and errors only)");
   return cmd;
@@ -75,29 +40,6 @@ CLI::App* add_report_command(CLI::App& app, ReportArgs& args) {
 
 int run_report(const ReportArgs& args) {
   using namespace lobfix;
-  SearchAreaOptions options;
-  options.map.cell_m = args.cell_m;
-  options.map.align_m = args.segment_m;
-  options.map.half_side_m = args.area_km * 500.0;
-  options.map.wild_fraction = args.wild_fraction;
-  options.region_probabilities = args.regions;
-  options.segments.region_probability = args.segments_cover;
-  options.segments.merge_below_poa = args.merge_below;
-  for (const std::string& text : args.searched) {
-    const auto report = parse_search_report(text);
-    if (!report) {
-      std::cerr << "lobfix: --searched " << text
-                << ": write SEGMENT:POD, e.g. S01:0.7 or S01:70%\n";
-      return kExitUsage;
-    }
-    options.searched.push_back(*report);
-  }
-  for (const double p : args.regions) {
-    if (!(p > 0.0 && p < 1.0)) {
-      std::cerr << "lobfix: --regions " << p << " is not a probability between 0 and 1\n";
-      return kExitUsage;
-    }
-  }
   std::unique_ptr<ProjectedCrs> crs;
   if (const int rc = open_output_crs(args.crs, crs); rc != kExitOk)
     return rc;
@@ -109,23 +51,9 @@ int run_report(const ReportArgs& args) {
   if (const int rc = solve_bearings(args.fix, loaded.bearings, solved); rc != kExitOk)
     return rc;
   std::vector<SearchArea> areas;
-  try {
-    for (const FixResult& r : solved.results) {
-      const auto t_area = std::chrono::steady_clock::now();
-      areas.push_back(make_search_area(loaded.bearings, r, options));
-      const SearchArea& a = areas.back();
-      if (a.map.ok) {
-        say(
-            fmt::format("search area of '{}': {} x {} cells of {} m, {} computed one by one, "
-                        "{} segments, in {:.0f} ms",
-                        a.signal, a.map.grid.columns, a.map.grid.rows, a.map.grid.cell_m,
-                        a.map.cells_evaluated, a.plan.segments.size(), ms_since(t_area)));
-      }
-    }
-  } catch (const InputError& e) {
-    std::cerr << "lobfix: " << e.diagnostic().reason << "\n";
-    return kExitUsage;
-  }
+  if (const int rc = make_search_areas(args.area, loaded.bearings, solved.results, areas);
+      rc != kExitOk)
+    return rc;
 
   const RunInfo run = make_run_info(args.input, loaded, solved);
   ReportOptions report;

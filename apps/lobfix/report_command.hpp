@@ -17,14 +17,7 @@ struct ReportArgs {
   std::string svg;
   std::string crs;
   std::string title;
-  double cell_m = 0.0;
-  double segment_m = 250.0;
-  double area_km = 0.0;
-  std::vector<double> regions{0.5, 0.95};
-  double segments_cover = 0.95;
-  double wild_fraction = 0.01;
-  double merge_below = 0.002;
-  std::vector<std::string> searched;
+  AreaOptionArgs area;
   bool json = false;
   bool quiet = false;
 };
