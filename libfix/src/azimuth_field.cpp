@@ -18,6 +18,22 @@ double wrap_pi(double a) {
   return a <= -kPi ? a + 2.0 * kPi : a;
 }
 
+/// Bilinear interpolation in an n x n lattice of values (row-major from the south-west) at
+/// lattice coordinates (x, y), clamped to the lattice.
+double bilinear(const std::vector<double>& v, int n, double x, double y) {
+  x = std::clamp(x, 0.0, n - 1.0);
+  y = std::clamp(y, 0.0, n - 1.0);
+  const int i = std::min(static_cast<int>(x), n - 2);
+  const int j = std::min(static_cast<int>(y), n - 2);
+  const double fx = x - i;
+  const double fy = y - j;
+  const std::size_t k =
+      static_cast<std::size_t>(j) * static_cast<std::size_t>(n) + static_cast<std::size_t>(i);
+  const std::size_t up = static_cast<std::size_t>(n);
+  return (1 - fy) * ((1 - fx) * v[k] + fx * v[k + 1]) +
+         fy * ((1 - fx) * v[k + up] + fx * v[k + up + 1]);
+}
+
 }  // namespace
 
 LatticeNodes::LatticeNodes(const UtmGrid& grid)
@@ -110,17 +126,7 @@ AzimuthField::AzimuthField(const LatLon& station, LatticeNodes& lattice, double 
 }
 
 double AzimuthField::correction(double easting_m, double northing_m) const {
-  const double x = std::clamp((easting_m - west_) / step_e_, 0.0, n_ - 1.0);
-  const double y = std::clamp((northing_m - south_) / step_n_, 0.0, n_ - 1.0);
-  const int i = std::min(static_cast<int>(x), n_ - 2);
-  const int j = std::min(static_cast<int>(y), n_ - 2);
-  const double fx = x - i;
-  const double fy = y - j;
-  const std::size_t k =
-      static_cast<std::size_t>(j) * static_cast<std::size_t>(n_) + static_cast<std::size_t>(i);
-  const std::size_t up = static_cast<std::size_t>(n_);
-  return (1 - fy) * ((1 - fx) * c_[k] + fx * c_[k + 1]) +
-         fy * ((1 - fx) * c_[k + up] + fx * c_[k + up + 1]);
+  return bilinear(c_, n_, (easting_m - west_) / step_e_, (northing_m - south_) / step_n_);
 }
 
 double AzimuthField::azimuth_rad(double easting_m, double northing_m) const {
@@ -214,17 +220,7 @@ FarEndField::FarEndField(const LatLon& station, LatticeNodes& lattice, double az
 
 double FarEndField::interpolate(const std::vector<double>& v, double easting_m,
                                 double northing_m) const {
-  const double x = std::clamp((easting_m - west_) / step_e_, 0.0, n_ - 1.0);
-  const double y = std::clamp((northing_m - south_) / step_n_, 0.0, n_ - 1.0);
-  const int i = std::min(static_cast<int>(x), n_ - 2);
-  const int j = std::min(static_cast<int>(y), n_ - 2);
-  const double fx = x - i;
-  const double fy = y - j;
-  const std::size_t k =
-      static_cast<std::size_t>(j) * static_cast<std::size_t>(n_) + static_cast<std::size_t>(i);
-  const std::size_t up = static_cast<std::size_t>(n_);
-  return (1 - fy) * ((1 - fx) * v[k] + fx * v[k + 1]) +
-         fy * ((1 - fx) * v[k + up] + fx * v[k + up + 1]);
+  return bilinear(v, n_, (easting_m - west_) / step_e_, (northing_m - south_) / step_n_);
 }
 
 FarEndField::Value FarEndField::at(double easting_m, double northing_m) const {
